@@ -1,0 +1,131 @@
+//! What the user typed: clap derive structs, nothing validated yet.
+
+use clap::{Args, Parser, Subcommand, ValueEnum};
+
+/// Implied tranche correlation from credit index and tranche quotes.
+#[derive(Debug, Parser)]
+#[command(name = "skewbook", version, about, long_about = None)]
+pub struct Cli {
+    /// The job to run.
+    #[command(subcommand)]
+    pub command: Command,
+}
+
+/// Subcommands.
+#[derive(Debug, Subcommand)]
+pub enum Command {
+    /// Bootstrap the pool hazard curve from the index quotes of each date.
+    Curve(CurveArgs),
+    /// Price every tranche of every date at one flat correlation.
+    Price(PriceArgs),
+    /// Compound and base correlation implied by the tranche quotes (the main job).
+    Implied(ImpliedArgs),
+    /// Vasicek large-pool loss distribution: quantiles, expected shortfall, IRB capital.
+    Loss(LossArgs),
+    /// Real-world PD and asset correlation from a default history.
+    Realworld(RealworldArgs),
+}
+
+/// Output format.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum, Default)]
+pub enum FormatArg {
+    /// Aligned columns for a terminal.
+    #[default]
+    Table,
+    /// Comma-separated values with a header row.
+    Csv,
+    /// JSON, rates and correlations as fractions.
+    Json,
+}
+
+impl From<FormatArg> for skewbook::output::Format {
+    fn from(f: FormatArg) -> Self {
+        match f {
+            FormatArg::Table => skewbook::output::Format::Table,
+            FormatArg::Csv => skewbook::output::Format::Csv,
+            FormatArg::Json => skewbook::output::Format::Json,
+        }
+    }
+}
+
+/// Options shared by every command that reads a snapshot.
+#[derive(Debug, Args)]
+pub struct MarketArgs {
+    /// Snapshot CSV file (`-` reads standard input).
+    pub file: String,
+    /// Recovery in percent; overrides the snapshot's `recovery_pct` (default 40).
+    #[arg(long, value_name = "PCT")]
+    pub recovery: Option<f64>,
+    /// Flat continuously compounded rate in percent, used when a date has no
+    /// `zero` rows.
+    #[arg(
+        long,
+        value_name = "PCT",
+        default_value_t = 0.0,
+        allow_negative_numbers = true
+    )]
+    pub rate: f64,
+    /// Output format.
+    #[arg(long, value_enum, default_value_t)]
+    pub format: FormatArg,
+}
+
+/// `skewbook curve`.
+#[derive(Debug, Args)]
+pub struct CurveArgs {
+    #[command(flatten)]
+    pub market: MarketArgs,
+}
+
+/// `skewbook price`.
+#[derive(Debug, Args)]
+pub struct PriceArgs {
+    #[command(flatten)]
+    pub market: MarketArgs,
+    /// Flat correlation, a fraction in (0, 1).
+    #[arg(long, value_name = "RHO")]
+    pub correlation: f64,
+}
+
+/// `skewbook implied`.
+#[derive(Debug, Args)]
+pub struct ImpliedArgs {
+    #[command(flatten)]
+    pub market: MarketArgs,
+}
+
+/// `skewbook loss`.
+#[derive(Debug, Args)]
+pub struct LossArgs {
+    /// One-year default probability, a fraction in (0, 1).
+    #[arg(long, value_name = "P")]
+    pub pd: f64,
+    /// Asset correlation, a fraction in (0, 1).
+    #[arg(long, value_name = "R")]
+    pub rho: f64,
+    /// Loss given default, a fraction in (0, 1].
+    #[arg(long, value_name = "L", default_value_t = 1.0)]
+    pub lgd: f64,
+    /// Confidence levels, comma-separated fractions.
+    #[arg(long, value_delimiter = ',', default_values_t = [0.99, 0.999])]
+    pub levels: Vec<f64>,
+    /// Output format.
+    #[arg(long, value_enum, default_value_t)]
+    pub format: FormatArg,
+}
+
+/// `skewbook realworld`.
+#[derive(Debug, Args)]
+pub struct RealworldArgs {
+    /// Default history CSV file (`-` reads standard input).
+    pub file: String,
+    /// Snapshot to set the risk-neutral side beside the estimates.
+    #[arg(long, value_name = "SNAPSHOT")]
+    pub against: Option<String>,
+    /// Confidence levels for loss quantiles, comma-separated fractions.
+    #[arg(long, value_delimiter = ',', default_values_t = [0.99, 0.999])]
+    pub levels: Vec<f64>,
+    /// Output format.
+    #[arg(long, value_enum, default_value_t)]
+    pub format: FormatArg,
+}

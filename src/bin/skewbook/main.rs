@@ -1,0 +1,87 @@
+//! skewbook command line: parses arguments, calls the library, prints.
+//!
+//! Exit status: 0 all good; 1 it ran but some quotes have no solution (their
+//! rows are printed and flagged); 2 bad input or usage. A broken pipe
+//! (`skewbook implied x.csv | head`) is success.
+
+mod cli;
+mod curve;
+mod implied;
+mod loss;
+mod price;
+mod realworld;
+
+use clap::Parser;
+use cli::{Cli, Command};
+use std::io::{self, Write};
+use std::process::ExitCode;
+
+/// What a command's run came to, before printing errors.
+pub enum Outcome {
+    /// Everything solved.
+    Clean,
+    /// It ran, but some quotes had no solution.
+    Unsolved,
+}
+
+fn run(cli: Cli, out: &mut dyn Write) -> Result<Outcome, Failure> {
+    match cli.command {
+        Command::Curve(a) => curve::run(a, out),
+        Command::Price(a) => price::run(a, out),
+        Command::Implied(a) => implied::run(a, out),
+        Command::Loss(a) => loss::run(a, out),
+        Command::Realworld(a) => realworld::run(a, out),
+    }
+}
+
+/// Why a command stopped.
+pub enum Failure {
+    /// A library error (bad input, unfittable quote, usage).
+    Lib(skewbook::Error),
+    /// Writing the output failed.
+    Io(io::Error),
+}
+
+impl From<skewbook::Error> for Failure {
+    fn from(e: skewbook::Error) -> Self {
+        Failure::Lib(e)
+    }
+}
+
+impl From<io::Error> for Failure {
+    fn from(e: io::Error) -> Self {
+        Failure::Io(e)
+    }
+}
+
+fn main() -> ExitCode {
+    let cli = match Cli::try_parse() {
+        Ok(c) => c,
+        Err(e) => {
+            let _ = e.print();
+            return if e.use_stderr() {
+                ExitCode::from(2)
+            } else {
+                ExitCode::SUCCESS
+            };
+        }
+    };
+    let stdout = io::stdout();
+    let mut out = io::BufWriter::new(stdout.lock());
+    let result = run(cli, &mut out).and_then(|o| out.flush().map(|_| o).map_err(Failure::Io));
+    match result {
+        Ok(Outcome::Clean) => ExitCode::SUCCESS,
+        Ok(Outcome::Unsolved) => ExitCode::from(1),
+        Err(Failure::Io(e)) if e.kind() == io::ErrorKind::BrokenPipe => ExitCode::SUCCESS,
+        Err(Failure::Io(e)) => {
+            eprintln!("error: writing output: {e}");
+            ExitCode::from(2)
+        }
+        Err(Failure::Lib(e)) => {
+            for p in &e.problems {
+                eprintln!("error: {p}");
+            }
+            ExitCode::from(e.exit_code())
+        }
+    }
+}

@@ -1,0 +1,1 @@
+//! Discount and pool hazard curves.

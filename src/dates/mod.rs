@@ -1,0 +1,1 @@
+//! Calendar, day counts and the premium schedule.

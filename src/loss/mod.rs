@@ -1,0 +1,1 @@
+//! Large-homogeneous-pool expected tranche loss and outstanding notional.

@@ -1,0 +1,144 @@
+//! The market data skewbook prices from, in the code's units (fractions).
+//!
+//! Readers in [`crate::input`] turn files into these types; everything
+//! downstream sees only checked values: spreads, coupons, upfronts, bounds,
+//! recoveries and rates are all fractions (0.03, not 3 or 300).
+
+use crate::error::Problem;
+use chrono::NaiveDate;
+
+/// How a quote is expressed.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum Quote {
+    /// Par running spread, as a fraction (0.006 for 60 bp); no upfront.
+    Spread(f64),
+    /// Upfront (fraction of notional, paid by the protection buyer) plus a
+    /// fixed running coupon (fraction per year).
+    Upfront {
+        /// Upfront, fraction of the instrument's notional.
+        upfront: f64,
+        /// Running coupon, fraction per year.
+        coupon: f64,
+    },
+}
+
+impl Quote {
+    /// The running coupon paid alongside: the coupon of an upfront quote, 0
+    /// for a par-spread quote.
+    pub fn coupon(&self) -> f64 {
+        match *self {
+            Quote::Spread(_) => 0.0,
+            Quote::Upfront { coupon, .. } => coupon,
+        }
+    }
+
+    /// The file's name for the quote kind.
+    pub fn kind_name(&self) -> &'static str {
+        match self {
+            Quote::Spread(_) => "spread_bp",
+            Quote::Upfront { .. } => "upfront_pct",
+        }
+    }
+
+    /// The quote in its file unit: bp for spreads, percent for upfronts.
+    pub fn in_file_unit(&self) -> f64 {
+        match *self {
+            Quote::Spread(s) => s * 1e4,
+            Quote::Upfront { upfront, .. } => upfront * 100.0,
+        }
+    }
+
+    /// The coupon in bp, `None` for a par-spread quote.
+    pub fn coupon_bp(&self) -> Option<f64> {
+        match *self {
+            Quote::Spread(_) => None,
+            Quote::Upfront { coupon, .. } => Some(coupon * 1e4),
+        }
+    }
+}
+
+/// One index quote of a trade date.
+#[derive(Debug, Clone, PartialEq)]
+pub struct IndexQuote {
+    /// Maturity date (protection runs to the end of this day).
+    pub maturity: NaiveDate,
+    /// The quote.
+    pub quote: Quote,
+    /// 1-based line of the row in its file.
+    pub line: u64,
+}
+
+/// One tranche quote of a trade date.
+#[derive(Debug, Clone, PartialEq)]
+pub struct TrancheQuote {
+    /// Maturity date.
+    pub maturity: NaiveDate,
+    /// Attachment, fraction of pool notional.
+    pub attach: f64,
+    /// Detachment, fraction of pool notional (> attach).
+    pub detach: f64,
+    /// The quote, per unit of tranche notional.
+    pub quote: Quote,
+    /// 1-based line of the row in its file.
+    pub line: u64,
+}
+
+impl TrancheQuote {
+    /// Tranche width D - A.
+    pub fn width(&self) -> f64 {
+        self.detach - self.attach
+    }
+}
+
+/// A continuously compounded Act/365F zero rate at a pillar date.
+#[derive(Debug, Clone, PartialEq)]
+pub struct ZeroPillar {
+    /// Pillar date.
+    pub date: NaiveDate,
+    /// Zero rate, fraction.
+    pub rate: f64,
+    /// 1-based line of the row in its file.
+    pub line: u64,
+}
+
+/// Everything quoted on one trade date.
+#[derive(Debug, Clone, PartialEq)]
+pub struct MarketDate {
+    /// Trade date.
+    pub date: NaiveDate,
+    /// Recovery given on this date's index rows, if any (they agree).
+    pub recovery: Option<f64>,
+    /// Index quotes, sorted by maturity.
+    pub index: Vec<IndexQuote>,
+    /// Tranche quotes, sorted by maturity then attachment.
+    pub tranches: Vec<TrancheQuote>,
+    /// Zero-rate pillars, sorted by date (empty: flat rate from the command line).
+    pub zeros: Vec<ZeroPillar>,
+}
+
+/// A snapshot file: one or many trade dates, in date order.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Snapshot {
+    /// Path as the user gave it (`-` for standard input).
+    pub path: String,
+    /// Trade dates, ascending.
+    pub dates: Vec<MarketDate>,
+    /// Problems that do not stop every command (for example tranches that do
+    /// not tile, which only base correlation needs).
+    pub warnings: Vec<Problem>,
+}
+
+/// Whether tranches of one maturity, sorted by attachment, tile the capital
+/// structure from 0 upward without gaps or overlaps (the top need not reach 100%).
+///
+/// Bounds compare to 1e-12, so 3% written as 3 or 3.0 tiles with 3.
+pub fn tiles_from_zero(sorted: &[&TrancheQuote]) -> bool {
+    let mut next = 0.0;
+    for t in sorted {
+        if (t.attach - next).abs() > 1e-12 {
+            return false;
+        }
+        next = t.detach;
+    }
+    true
+}

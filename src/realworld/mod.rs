@@ -1,0 +1,1 @@
+//! Real-world calibration from default histories.

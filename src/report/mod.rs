@@ -1,0 +1,1 @@
+//! One report type per command.

@@ -1,0 +1,1 @@
+//! Root finding, compound and base correlation.

@@ -1,0 +1,1 @@
+//! Tranche legs and prices.
