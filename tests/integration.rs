@@ -1,6 +1,10 @@
 //! The one integration-test binary; each module is one area.
 
+/// The binary on malformed snapshots: exit 2, `path:line:col:` on stderr, no panic; `-` is stdin.
+mod cli_errors;
 /// Index legs and the hazard bootstrap.
 mod curve;
+/// Snapshot reader: valid files, every validation rule, malformed fixtures, fuzzing.
+mod snapshot;
 /// Tranche legs, compound and base correlation.
 mod tranche;
