@@ -4,6 +4,8 @@
 mod cli_errors;
 /// Index legs and the hazard bootstrap.
 mod curve;
+/// Every bundled sample through every command and format.
+mod samples;
 /// Snapshot reader: valid files, every validation rule, malformed fixtures, fuzzing.
 mod snapshot;
 /// Tranche legs, compound and base correlation.
