@@ -1,1 +1,4 @@
 //! The one integration-test binary; each module is one area.
+
+/// Bivariate normal CDF: mpmath fixture and identities.
+mod bvn;
