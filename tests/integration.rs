@@ -1,5 +1,7 @@
 //! The one integration-test binary; each module is one area.
 
+/// Bivariate normal CDF: mpmath fixture and identities.
+mod bvn;
 /// The binary on malformed snapshots: exit 2, `path:line:col:` on stderr, no panic; `-` is stdin.
 mod cli_errors;
 /// Index legs and the hazard bootstrap.

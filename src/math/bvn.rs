@@ -1,1 +1,369 @@
-//! Bivariate normal CDF.
+//! The standard bivariate normal CDF `Phi2(h, k; r)` at double precision.
+//!
+//! This is the inner loop of large-pool tranche pricing (one call per base
+//! tranche, horizon and correlation), so it is a fixed Gauss-Legendre sum
+//! with no allocation and no adaptive steps.
+//!
+//! # Method (Genz 2004, after Drezner and Wesolowsky 1990)
+//!
+//! The upper probability `P(X > h, Y > k)` is computed, then
+//! `Phi2(h, k; r) = P(X > -h, Y > -k)`.
+//!
+//! - `|r| < 0.925`: the angle form of Plackett's identity,
+//!   `P = N(-h) N(-k) + 1/(2 pi) int_0^{asin r} exp(-(h^2 + k^2 - 2hk sin t) / (2 cos^2 t)) dt`,
+//!   with Gauss-Legendre on 6, 12 or 20 points for `|r| < 0.3`, `< 0.75`
+//!   and above.
+//! - `|r| >= 0.925`: the integral in `sqrt(1 - r^2)` of Drezner and
+//!   Wesolowsky, with the leading behaviour of the integrand near `|r| = 1`
+//!   subtracted in closed form (a short series) and the remainder on 20
+//!   Gauss-Legendre points; `|r| = 1` exactly is the degenerate limit.
+//!
+//! Accuracy: about 5e-16 absolute (Genz reports this over the whole plane);
+//! against 40-digit mpmath values on the fixture grid (tails to -8, `r` to
+//! +/-0.9999) this implementation stays below 1e-15 absolute. Relative
+//! accuracy in the lower tail is close to full for `r >= 0`; for `r < 0`
+//! the value comes out of a cancellation and only the absolute bound holds.
+//!
+//! # References
+//!
+//! - A. Genz, "Numerical computation of rectangular bivariate and trivariate
+//!   normal and t probabilities", Statistics and Computing 14 (2004) 251-260.
+//! - Z. Drezner and G. O. Wesolowsky, "On the computation of the bivariate
+//!   normal integral", J. Statist. Comput. Simul. 35 (1990) 101-107.
+//! - R. L. Plackett, "A reduction formula for normal multivariate
+//!   integrals", Biometrika 41 (1954) 351-360.
+
+mod erfc;
+
+use std::f64::consts::{FRAC_1_SQRT_2, PI};
+
+const TWO_PI: f64 = 2.0 * PI;
+
+/// Beyond this magnitude `N(-x)` underflows to zero in `f64`
+/// (`N(-38.5)` is already below the smallest subnormal), so a bound at or
+/// past it is treated as infinite.
+const FAR: f64 = 40.0;
+
+// Gauss-Legendre rules on [-1, 1], positive half of the symmetric nodes.
+// The values are Genz's (2004) 6, 12 and 20 point rules; his tables give 16
+// digits, here each is the correctly rounded f64 of a 40-digit mpmath
+// evaluation (they agree with the paper's to the digits it prints). A unit
+// test checks them against the independent `gauss-quad` construction.
+
+/// 6-point nodes.
+const X6: [f64; 3] = [0.932469514203152, 0.6612093864662645, 0.2386191860831969];
+/// 6-point weights.
+const W6: [f64; 3] = [0.17132449237917036, 0.3607615730481386, 0.46791393457269104];
+/// 12-point nodes.
+const X12: [f64; 6] = [
+    0.9815606342467192,
+    0.9041172563704749,
+    0.7699026741943047,
+    0.5873179542866175,
+    0.3678314989981802,
+    0.1252334085114689,
+];
+/// 12-point weights.
+const W12: [f64; 6] = [
+    0.04717533638651183,
+    0.10693932599531843,
+    0.16007832854334622,
+    0.20316742672306592,
+    0.2334925365383548,
+    0.24914704581340277,
+];
+/// 20-point nodes.
+const X20: [f64; 10] = [
+    0.9931285991850949,
+    0.9639719272779138,
+    0.912234428251326,
+    0.8391169718222188,
+    0.7463319064601508,
+    0.636053680726515,
+    0.5108670019508271,
+    0.37370608871541955,
+    0.22778585114164507,
+    0.07652652113349734,
+];
+/// 20-point weights.
+const W20: [f64; 10] = [
+    0.017614007139152118,
+    0.04060142980038694,
+    0.06267204833410907,
+    0.08327674157670475,
+    0.10193011981724044,
+    0.11819453196151841,
+    0.13168863844917664,
+    0.14209610931838204,
+    0.14917298647260374,
+    0.15275338713072584,
+];
+
+/// Standard bivariate normal CDF `Phi2(h, k; r) = P(X <= h, Y <= k)`, where
+/// `X`, `Y` are standard normal with correlation `r`.
+///
+/// `h` and `k` may be infinite; `r` is clamped to `[-1, 1]`, and `r = +/-1`
+/// give the degenerate limits exactly. The result is clamped to `[0, 1]`.
+/// It is never NaN unless an argument is NaN.
+///
+/// # Formula
+///
+/// ```text
+/// Phi2(h, k; r) = int_{-inf}^{h} int_{-inf}^{k} phi2(x, y; r) dy dx
+/// phi2(x, y; r) = exp(-(x² - 2 r x y + y²) / (2 (1 - r²))) / (2 pi sqrt(1 - r²))
+///
+/// |r| < 0.925:  Phi2 = N(h) N(k) + 1/(2 pi) ∫_0^{asin r} exp(-(h² + k² - 2hk sin t) / (2 cos² t)) dt
+/// |r| ≥ 0.925:  Drezner-Wesolowsky form in sqrt(1 - r²), singular part in closed form
+/// r = 1:        N(min(h, k))
+/// r = -1:       max(0, N(h) + N(k) - 1)
+/// ```
+///
+/// Gauss-Legendre with 6 / 12 / 20 points for `|r| < 0.3 / 0.75 / above`.
+/// Absolute error about 5e-16.
+///
+/// # References
+///
+/// A. Genz (2004), "Numerical computation of rectangular bivariate and
+/// trivariate normal and t probabilities", Statistics and Computing 14;
+/// Z. Drezner and G. O. Wesolowsky (1990), J. Statist. Comput. Simul. 35.
+///
+/// # Example
+///
+/// `Phi2(0, 0; r) = 1/4 + asin(r) / (2 pi)` (Sheppard), so at `r = 0.5` it
+/// is `1/3`:
+///
+/// ```
+/// use skewbook::math::bvn::bvn_cdf;
+/// assert!((bvn_cdf(0.0, 0.0, 0.5) - 1.0 / 3.0).abs() < 1e-15);
+/// assert_eq!(bvn_cdf(f64::INFINITY, f64::INFINITY, -0.3), 1.0);
+/// assert_eq!(bvn_cdf(f64::NEG_INFINITY, 0.7, 0.9), 0.0);
+/// ```
+#[inline]
+pub fn bvn_cdf(h: f64, k: f64, r: f64) -> f64 {
+    if h.is_nan() || k.is_nan() || r.is_nan() {
+        return f64::NAN;
+    }
+    let r = r.clamp(-1.0, 1.0);
+    if h <= -FAR || k <= -FAR {
+        return 0.0;
+    }
+    if h >= FAR {
+        return if k >= FAR { 1.0 } else { norm_cdf(k) };
+    }
+    if k >= FAR {
+        return norm_cdf(h);
+    }
+    upper(-h, -k, r).clamp(0.0, 1.0)
+}
+
+/// Standard normal CDF `N(x)` at full double precision (below 1 ulp of
+/// `erfc` plus the rounding of `x / sqrt 2`), tails computed directly.
+///
+/// `statrs` 0.18's `erfc` (behind [`crate::math::normal::cdf`]) is off by up
+/// to 1e-10 relative near `|x| = 0.7`; this uses the Sun/FreeBSD `erfc`
+/// instead. Used by the bivariate normal and by [`crate::loss`].
+///
+/// # Formula
+///
+/// ```text
+/// N(x) = erfc(-x / sqrt 2) / 2
+/// ```
+///
+/// # References
+///
+/// Sun Microsystems `s_erf.c` (1993), as in FreeBSD msun and the `libm` crate.
+///
+/// # Example
+///
+/// ```
+/// use skewbook::math::bvn::norm_cdf;
+/// assert_eq!(norm_cdf(0.0), 0.5);
+/// // N(-1) = 0.15865525393145705 (mpmath)
+/// assert!((norm_cdf(-1.0) - 0.15865525393145705).abs() < 3e-17);
+/// ```
+#[inline]
+pub fn norm_cdf(x: f64) -> f64 {
+    0.5 * erfc::erfc(-x * FRAC_1_SQRT_2)
+}
+
+/// Standard bivariate normal density `phi2(h, k; r)`.
+///
+/// For `|r| = 1` the distribution is singular (it lives on the line
+/// `k = r h`): the result is 0 off that line and `+inf` on it.
+///
+/// # Formula
+///
+/// ```text
+/// phi2(h, k; r) = exp(-(h² - 2 r h k + k²) / (2 (1 - r²))) / (2 pi sqrt(1 - r²))
+/// ```
+///
+/// Plackett (1954): `d Phi2(h, k; r) / dr = phi2(h, k; r)`.
+///
+/// # References
+///
+/// R. L. Plackett (1954), Biometrika 41.
+///
+/// # Example
+///
+/// ```
+/// use skewbook::math::bvn::bvn_pdf;
+/// let at_origin = 1.0 / (2.0 * std::f64::consts::PI);
+/// assert!((bvn_pdf(0.0, 0.0, 0.0) - at_origin).abs() < 1e-16);
+/// ```
+pub fn bvn_pdf(h: f64, k: f64, r: f64) -> f64 {
+    if h.is_nan() || k.is_nan() || r.is_nan() {
+        return f64::NAN;
+    }
+    let r = r.clamp(-1.0, 1.0);
+    let one_minus_r2 = (1.0 - r) * (1.0 + r);
+    if one_minus_r2 <= 0.0 {
+        return if k == r * h { f64::INFINITY } else { 0.0 };
+    }
+    if h.is_infinite() || k.is_infinite() {
+        return 0.0;
+    }
+    let q = (h * h - 2.0 * r * h * k + k * k) / (2.0 * one_minus_r2);
+    (-q).exp() / (TWO_PI * one_minus_r2.sqrt())
+}
+
+/// `P(X > h, Y > k)` for finite `h`, `k` with `|h|, |k| < FAR`; Genz's BVND.
+fn upper(h: f64, k: f64, r: f64) -> f64 {
+    if r == 0.0 {
+        return norm_cdf(-h) * norm_cdf(-k);
+    }
+    let (x, w): (&[f64], &[f64]) = if r.abs() < 0.3 {
+        (&X6, &W6)
+    } else if r.abs() < 0.75 {
+        (&X12, &W12)
+    } else {
+        (&X20, &W20)
+    };
+    let hk = h * k;
+    if r.abs() < 0.925 {
+        let hs = 0.5 * (h * h + k * k);
+        let asr = r.asin();
+        let mut sum = 0.0;
+        for (&xi, &wi) in x.iter().zip(w) {
+            for node in [1.0 - xi, 1.0 + xi] {
+                let sn = (0.5 * asr * node).sin();
+                sum += wi * ((sn * hk - hs) / (1.0 - sn * sn)).exp();
+            }
+        }
+        return sum * asr / (2.0 * TWO_PI) + norm_cdf(-h) * norm_cdf(-k);
+    }
+    // |r| >= 0.925: reflect r < 0 onto r > 0 through k -> -k.
+    let (k, hk) = if r < 0.0 { (-k, -hk) } else { (k, hk) };
+    let mut bvn = 0.0;
+    if r.abs() < 1.0 {
+        let a_s = (1.0 - r) * (1.0 + r);
+        let mut a = a_s.sqrt();
+        let bs = (h - k) * (h - k);
+        let c = (4.0 - hk) / 8.0;
+        let d = (12.0 - hk) / 16.0;
+        bvn = a
+            * (-0.5 * (bs / a_s + hk)).exp()
+            * (1.0 - c * (bs - a_s) * (1.0 - d * bs / 5.0) / 3.0 + c * d * a_s * a_s / 5.0);
+        if hk > -160.0 {
+            let b = bs.sqrt();
+            bvn -= (-0.5 * hk).exp()
+                * TWO_PI.sqrt()
+                * norm_cdf(-b / a)
+                * b
+                * (1.0 - c * bs * (1.0 - d * bs / 5.0) / 3.0);
+        }
+        a *= 0.5;
+        for (&xi, &wi) in x.iter().zip(w) {
+            let xs = (a * (1.0 + xi)) * (a * (1.0 + xi));
+            let rs = (1.0 - xs).sqrt();
+            bvn += a
+                * wi
+                * ((-bs / (2.0 * xs) - hk / (1.0 + rs)).exp() / rs
+                    - (-0.5 * (bs / xs + hk)).exp() * (1.0 + c * xs * (1.0 + d * xs)));
+            let xs = a_s * (1.0 - xi) * (1.0 - xi) / 4.0;
+            let rs = (1.0 - xs).sqrt();
+            bvn += a
+                * wi
+                * (-0.5 * (bs / xs + hk)).exp()
+                * ((-hk * (1.0 - rs) / (2.0 * (1.0 + rs))).exp() / rs
+                    - (1.0 + c * xs * (1.0 + d * xs)));
+        }
+        bvn = -bvn / TWO_PI;
+    }
+    if r > 0.0 {
+        bvn + norm_cdf(-h.max(k))
+    } else {
+        let mut bvn = -bvn;
+        if k > h {
+            bvn += if h < 0.0 {
+                norm_cdf(k) - norm_cdf(h)
+            } else {
+                norm_cdf(-h) - norm_cdf(-k)
+            };
+        }
+        bvn
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use gauss_quad::legendre::GaussLegendre;
+    use std::num::NonZeroUsize;
+
+    /// The constant rules equal gauss-quad's independent construction
+    /// (Bogaert's algorithm) to rounding.
+    #[test]
+    fn rules_match_gauss_quad() {
+        let rules: [(&[f64], &[f64]); 3] = [(&X6, &W6), (&X12, &W12), (&X20, &W20)];
+        for (x, w) in rules {
+            let n = 2 * x.len();
+            let rule = GaussLegendre::new(NonZeroUsize::new(n).expect("n > 0"));
+            let mut pos: Vec<(f64, f64)> = rule
+                .iter()
+                .filter(|(node, _)| *node > 0.0)
+                .map(|(node, weight)| (*node, *weight))
+                .collect();
+            pos.sort_by(|a, b| b.0.total_cmp(&a.0));
+            assert_eq!(pos.len(), x.len());
+            for ((xn, wn), (xg, wg)) in x.iter().zip(w).zip(pos) {
+                assert!((xn - xg).abs() < 4e-16, "node {xn} vs {xg}");
+                assert!((wn - wg).abs() < 4e-16, "weight {wn} vs {wg}");
+            }
+        }
+    }
+
+    /// Sheppard: Phi2(0, 0; r) = 1/4 + asin(r) / (2 pi), across all branches.
+    #[test]
+    fn origin_is_sheppard() {
+        for r in [
+            -1.0, -0.99, -0.93, -0.8, -0.5, -0.1, 0.0, 0.2, 0.6, 0.9, 0.95, 1.0,
+        ] {
+            let exact = 0.25 + f64::asin(r) / TWO_PI;
+            assert!((bvn_cdf(0.0, 0.0, r) - exact).abs() < 5e-16, "r = {r}");
+        }
+    }
+
+    /// No NaN at the edges, including infinite and huge bounds.
+    #[test]
+    fn edges_are_finite() {
+        let vals = [
+            f64::NEG_INFINITY,
+            -1e300,
+            -39.0,
+            -8.0,
+            0.0,
+            3.0,
+            39.9,
+            1e300,
+            f64::INFINITY,
+        ];
+        for &h in &vals {
+            for &k in &vals {
+                for r in [-2.0, -1.0, -0.9999, -0.5, 0.0, 0.5, 0.9999, 1.0, 2.0] {
+                    let p = bvn_cdf(h, k, r);
+                    assert!((0.0..=1.0).contains(&p), "{h} {k} {r} -> {p}");
+                }
+            }
+        }
+    }
+}
