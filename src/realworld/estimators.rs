@@ -1,0 +1,1 @@
+//! Estimators of PD and asset correlation from default histories.
