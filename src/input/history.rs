@@ -78,7 +78,10 @@ impl History {
         {
             return Err(Error::msg(
                 ErrorKind::InvalidInput,
-                format!("period {}: expected a default rate in [0, 1], found {r}", i + 1),
+                format!(
+                    "period {}: expected a default rate in [0, 1], found {r}",
+                    i + 1
+                ),
             ));
         }
         let periods = rates
@@ -101,7 +104,11 @@ impl History {
     /// [`ErrorKind::InvalidInput`] when obligors is 0, defaults exceed
     /// obligors, or there are fewer than [`MIN_PERIODS`] periods.
     pub fn from_counts(counts: &[(u64, u64)]) -> Result<History> {
-        if let Some((i, (d, n))) = counts.iter().enumerate().find(|(_, (d, n))| *n == 0 || d > n) {
+        if let Some((i, (d, n))) = counts
+            .iter()
+            .enumerate()
+            .find(|(_, (d, n))| *n == 0 || d > n)
+        {
             return Err(Error::msg(
                 ErrorKind::InvalidInput,
                 format!(
@@ -295,7 +302,10 @@ pub fn parse_history(path: &str, text: &str) -> Result<History> {
         });
     }
     let (Some(period_col), Some(layout)) = (period_col, layout) else {
-        return Err(Error::msg(ErrorKind::InvalidInput, "unreachable header state"));
+        return Err(Error::msg(
+            ErrorKind::InvalidInput,
+            "unreachable header state",
+        ));
     };
     let mut periods = Vec::new();
     let mut last_line = header_line;
@@ -304,7 +314,10 @@ pub fn parse_history(path: &str, text: &str) -> Result<History> {
             Ok(r) => r,
             Err(e) => {
                 let line = e.position().map_or(last_line + 1, |p| p.line());
-                problems.push(Problem::at(loc(line, None, None), format!("cannot read the row: {e}")));
+                problems.push(Problem::at(
+                    loc(line, None, None),
+                    format!("cannot read the row: {e}"),
+                ));
                 continue;
             }
         };
@@ -313,7 +326,11 @@ pub fn parse_history(path: &str, text: &str) -> Result<History> {
         if rec.len() != names.len() {
             problems.push(Problem::at(
                 loc(line, None, None),
-                format!("expected {} cells as in the header, found {}", names.len(), rec.len()),
+                format!(
+                    "expected {} cells as in the header, found {}",
+                    names.len(),
+                    rec.len()
+                ),
             ));
             continue;
         }
@@ -322,12 +339,18 @@ pub fn parse_history(path: &str, text: &str) -> Result<History> {
         let label = cell(period_col).to_string();
         let mut ok = true;
         if label.is_empty() {
-            problems.push(Problem::at(at(period_col), "expected a period label, found an empty cell"));
+            problems.push(Problem::at(
+                at(period_col),
+                "expected a period label, found an empty cell",
+            ));
             ok = false;
         } else if let Some(prev) = periods.iter().find(|p: &&Period| p.label == label) {
             problems.push(Problem::at(
                 at(period_col),
-                format!("expected each period once, found \"{label}\" again (first on line {})", prev.line),
+                format!(
+                    "expected each period once, found \"{label}\" again (first on line {})",
+                    prev.line
+                ),
             ));
             ok = false;
         }
@@ -340,7 +363,10 @@ pub fn parse_history(path: &str, text: &str) -> Result<History> {
                 Ok(x) if !(0.0..=100.0).contains(&x) => {
                     problems.push(Problem::at(
                         at(rate),
-                        format!("expected a default rate in percent in [0, 100], found {}", cell(rate)),
+                        format!(
+                            "expected a default rate in percent in [0, 100], found {}",
+                            cell(rate)
+                        ),
                     ));
                     None
                 }
@@ -411,7 +437,10 @@ pub fn parse_history(path: &str, text: &str) -> Result<History> {
             ErrorKind::InvalidInput,
             Problem::at(
                 loc(last_line, None, None),
-                format!("expected at least {MIN_PERIODS} periods, found {}", periods.len()),
+                format!(
+                    "expected at least {MIN_PERIODS} periods, found {}",
+                    periods.len()
+                ),
             ),
         ));
     }
@@ -449,7 +478,11 @@ mod tests {
 
     #[test]
     fn reads_rates_in_percent_as_fractions() {
-        let h = parse_history("h.csv", "period,default_rate_pct\n2019,1.5\n2020, 0\n2021,2.25\n").unwrap();
+        let h = parse_history(
+            "h.csv",
+            "period,default_rate_pct\n2019,1.5\n2020, 0\n2021,2.25\n",
+        )
+        .unwrap();
         assert_eq!(h.kind, HistoryKind::Rates);
         assert_eq!(h.rates(), vec![0.015, 0.0, 0.0225]);
         assert_eq!(h.periods[1].line, 3);
@@ -459,7 +492,11 @@ mod tests {
 
     #[test]
     fn reads_counts() {
-        let h = parse_history("h.csv", "obligors,defaults,period\n200,3,a\n210,0,b\n190,1,c\n").unwrap();
+        let h = parse_history(
+            "h.csv",
+            "obligors,defaults,period\n200,3,a\n210,0,b\n190,1,c\n",
+        )
+        .unwrap();
         assert_eq!(h.counts().unwrap(), vec![(3, 200), (0, 210), (1, 190)]);
         assert_eq!(h.periods[0].rate, 0.015);
     }
@@ -488,8 +525,14 @@ mod tests {
         assert!(m[0].starts_with("h.csv:2:2: column \"default_rate_pct\": expected a default rate in percent in [0, 100], found -0.1"));
         assert!(m[1].contains("found 100.5"));
         assert!(m[2].starts_with("h.csv:4:"));
-        assert_eq!(m[3], "h.csv:5:2: column \"default_rate_pct\": expected a number, found \"abc\"");
-        assert_eq!(m[4], "h.csv:6:2: column \"default_rate_pct\": expected a number, found an empty cell");
+        assert_eq!(
+            m[3],
+            "h.csv:5:2: column \"default_rate_pct\": expected a number, found \"abc\""
+        );
+        assert_eq!(
+            m[4],
+            "h.csv:6:2: column \"default_rate_pct\": expected a number, found an empty cell"
+        );
     }
 
     #[test]

@@ -101,7 +101,10 @@ mod tests {
             let got = bvn_cdf(h, k, r);
             // statrs 0.18's erfc (inside N) is good to ~1e-10 relative; the
             // quadrature itself to ~1e-15.
-            assert!((got - want).abs() < (2e-10 * want).max(2e-12), "{h} {k} {r}: {got} vs {want}");
+            assert!(
+                (got - want).abs() < (2e-10 * want).max(2e-12),
+                "{h} {k} {r}: {got} vs {want}"
+            );
         }
     }
 }

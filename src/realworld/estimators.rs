@@ -274,7 +274,8 @@ pub fn probit_moments(h: &History, divisor: VarianceDivisor) -> Estimate {
     let d = divisor.value(t);
     let m = mean(&x);
     let v = x.iter().map(|xi| (xi - m).powi(2)).sum::<f64>() / d;
-    e.notes.push(format!("variance divisor {}", divisor.label()));
+    e.notes
+        .push(format!("variance divisor {}", divisor.label()));
     if v <= 0.0 {
         e.notes
             .push("all probit rates are equal: rho on the boundary 0".to_string());
@@ -285,7 +286,8 @@ pub fn probit_moments(h: &History, divisor: VarianceDivisor) -> Estimate {
     let rho = v / (1.0 + v);
     let c = m / (1.0 + v).sqrt();
     let tf = t as f64;
-    let se_pd = pdf(c) * (v / (tf * (1.0 + v)) + m * m * v * v / (2.0 * d * (1.0 + v).powi(3))).sqrt();
+    let se_pd =
+        pdf(c) * (v / (tf * (1.0 + v)) + m * m * v * v / (2.0 * d * (1.0 + v).powi(3))).sqrt();
     let se_rho = rho * (1.0 - rho) * (2.0 / d).sqrt();
     e.se_method = Some(SeMethod::DeltaMethod);
     e.set_pd(cdf(c), Some(se_pd));
@@ -418,10 +420,12 @@ pub fn moment_matching(h: &History, divisor: VarianceDivisor) -> Estimate {
     let x = h.rates();
     let y: Vec<f64> = x.iter().map(|r| r * r).collect();
     let t = x.len();
-    e.notes.push(format!("variance divisor {}", divisor.label()));
+    e.notes
+        .push(format!("variance divisor {}", divisor.label()));
     if h.counts().is_some() {
         e.notes.push(
-            "rates d/n used as given: binomial noise of finite cohorts raises the variance".to_string(),
+            "rates d/n used as given: binomial noise of finite cohorts raises the variance"
+                .to_string(),
         );
     }
     moment_fit(&mut e, &x, &y, t as f64 / divisor.value(t));
@@ -501,7 +505,8 @@ fn ln_cdf(x: f64) -> f64 {
     } else {
         // N(x) = phi(x) / (-x) (1 - 1/x² + 3/x⁴ - 15/x⁶ + ...)
         let u = 1.0 / (x * x);
-        -0.5 * x * x - (-x).ln() - 0.5 * (2.0 * PI).ln() + (1.0 - u + 3.0 * u * u - 15.0 * u * u * u).ln()
+        -0.5 * x * x - (-x).ln() - 0.5 * (2.0 * PI).ln()
+            + (1.0 - u + 3.0 * u * u - 15.0 * u * u * u).ln()
     }
 }
 
@@ -781,13 +786,15 @@ pub fn binomial_ml(h: &History) -> Estimate {
     let total_d: u64 = counts.iter().map(|c| c.0).sum();
     let total_n: u64 = counts.iter().map(|c| c.1).sum();
     if total_d == 0 {
-        e.notes
-            .push("undefined: no defaults in any period (the likelihood rises as PD -> 0)".to_string());
+        e.notes.push(
+            "undefined: no defaults in any period (the likelihood rises as PD -> 0)".to_string(),
+        );
         return e;
     }
     if total_d == total_n {
-        e.notes
-            .push("undefined: every obligor defaulted (the likelihood rises as PD -> 1)".to_string());
+        e.notes.push(
+            "undefined: every obligor defaulted (the likelihood rises as PD -> 1)".to_string(),
+        );
         return e;
     }
     let coh = cohorts(&counts);
@@ -824,7 +831,10 @@ pub fn binomial_ml(h: &History) -> Estimate {
         let mut t = 1.0;
         let mut accepted = None;
         for _ in 0..40 {
-            let cand = [x[0] + t * step[0], (x[1] + t * step[1]).clamp(ETA_MIN, ETA_MAX)];
+            let cand = [
+                x[0] + t * step[0],
+                (x[1] + t * step[1]).clamp(ETA_MIN, ETA_MAX),
+            ];
             if f(cand) >= f0 - 1e-12 {
                 accepted = Some(cand);
                 break;
@@ -855,11 +865,16 @@ pub fn binomial_ml(h: &History) -> Estimate {
     e.se_method = Some(SeMethod::ObservedInformation);
     if rho < RHO_BOUNDARY || x[1] <= ETA_MIN + 1.0 {
         // Boundary: the information in logit(rho) vanishes; PD's from the c-direction alone.
-        let se_c = if hm[0][0] < 0.0 { (-1.0 / hm[0][0]).sqrt() } else { f64::NAN };
+        let se_c = if hm[0][0] < 0.0 {
+            (-1.0 / hm[0][0]).sqrt()
+        } else {
+            f64::NAN
+        };
         e.set_pd(cdf(c), Some(pdf(c) * se_c));
         e.set_rho(0.0, None);
         e.notes.push(
-            "fit on the boundary rho ≈ 0 (no excess dispersion); no standard error for rho".to_string(),
+            "fit on the boundary rho ≈ 0 (no excess dispersion); no standard error for rho"
+                .to_string(),
         );
     } else {
         let det = hm[0][0] * hm[1][1] - hm[0][1] * hm[0][1];
@@ -956,7 +971,10 @@ mod tests {
             let c = inv_cdf(pd);
             let got = ln_mixture_integral(d, n, c, rho);
             let want = ln_integral_fine(d, n, c, rho);
-            assert!((got - want).abs() < 1e-8, "d {d} n {n} pd {pd} rho {rho}: {got} vs {want}");
+            assert!(
+                (got - want).abs() < 1e-8,
+                "d {d} n {n} pd {pd} rho {rho}: {got} vs {want}"
+            );
         }
     }
 
@@ -966,7 +984,9 @@ mod tests {
     #[test]
     fn probit_closed_form_maximises_the_vasicek_likelihood() {
         use crate::realworld::vasicek::Vasicek;
-        let rates = [0.012, 0.031, 0.008, 0.019, 0.054, 0.022, 0.015, 0.009, 0.027, 0.041];
+        let rates = [
+            0.012, 0.031, 0.008, 0.019, 0.054, 0.022, 0.015, 0.009, 0.027, 0.041,
+        ];
         let h = History::from_rates(&rates).unwrap();
         let e = probit_moments(&h, VarianceDivisor::T);
         let (pd, rho) = (e.pd.unwrap(), e.rho.unwrap());
@@ -1041,7 +1061,11 @@ mod tests {
         let ex2 = gl.integrate(-12.0, 12.0, |z| {
             cdf((c - rho.sqrt() * z) / (1.0 - rho).sqrt()).powi(2) * pdf(z)
         });
-        assert!((ex2 - pd * pd - var).abs() < 1e-12 * var.max(1e-6) / 1e-6, "{}", ex2 - pd * pd - var);
+        assert!(
+            (ex2 - pd * pd - var).abs() < 1e-12 * var.max(1e-6) / 1e-6,
+            "{}",
+            ex2 - pd * pd - var
+        );
     }
 
     #[test]
@@ -1057,7 +1081,11 @@ mod tests {
     #[test]
     fn no_defaults_at_all_is_said() {
         let h = History::from_counts(&[(0, 100), (0, 100), (0, 100)]).unwrap();
-        for e in [moment_matching(&h, VarianceDivisor::T), joint_default_moments(&h), binomial_ml(&h)] {
+        for e in [
+            moment_matching(&h, VarianceDivisor::T),
+            joint_default_moments(&h),
+            binomial_ml(&h),
+        ] {
             assert!(e.pd.is_none(), "{e:?}");
             assert!(e.notes.iter().any(|n| n.contains("no defaults")));
         }

@@ -58,7 +58,12 @@ pub struct IrbCapital {
 /// assert!((k.risk_weight - 0.9232).abs() < 1e-4);
 /// # Ok::<(), skewbook::Error>(())
 /// ```
-pub fn irb_corporate(pd: f64, lgd: f64, maturity: f64, turnover_m: Option<f64>) -> Result<IrbCapital> {
+pub fn irb_corporate(
+    pd: f64,
+    lgd: f64,
+    maturity: f64,
+    turnover_m: Option<f64>,
+) -> Result<IrbCapital> {
     if !(pd.is_finite() && pd > 0.0 && pd < 1.0) {
         return Err(Error::msg(
             ErrorKind::Usage,
@@ -124,7 +129,11 @@ mod tests {
             (0.03, 128.44),
         ] {
             let k = irb_corporate(pd, 0.45, 2.5, None).unwrap();
-            assert!((k.risk_weight * 100.0 - rw_pct).abs() < 0.01, "PD {pd}: {}", k.risk_weight);
+            assert!(
+                (k.risk_weight * 100.0 - rw_pct).abs() < 0.01,
+                "PD {pd}: {}",
+                k.risk_weight
+            );
         }
     }
 

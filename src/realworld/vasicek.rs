@@ -292,7 +292,10 @@ mod tests {
         ];
         for (rho, row) in table {
             for (pd, want) in pds.iter().zip(row) {
-                let got = Vasicek::new(*pd, rho, 1.0).unwrap().quantile(0.999).unwrap();
+                let got = Vasicek::new(*pd, rho, 1.0)
+                    .unwrap()
+                    .quantile(0.999)
+                    .unwrap();
                 assert!((got - want).abs() < 6e-7, "pd {pd} rho {rho}: {got}");
             }
         }
@@ -305,9 +308,30 @@ mod tests {
     #[test]
     fn high_precision_quantiles_second_moment_and_shortfall() {
         let rows = [
-            (0.01, 0.12, 0.0903258313261, 0.00657105077249, 2.1709607968929e-4, 0.109210355273),
-            (0.02, 0.10, 0.128237107299, 0.0151999152940, 6.8798399411143e-4, 0.149500491063),
-            (0.05, 0.30, 0.522749631012, 0.0246506849657, 7.1346288078411e-3, 0.592415644051),
+            (
+                0.01,
+                0.12,
+                0.0903258313261,
+                0.00657105077249,
+                2.1709607968929e-4,
+                0.109210355273,
+            ),
+            (
+                0.02,
+                0.10,
+                0.128237107299,
+                0.0151999152940,
+                6.8798399411143e-4,
+                0.149500491063,
+            ),
+            (
+                0.05,
+                0.30,
+                0.522749631012,
+                0.0246506849657,
+                7.1346288078411e-3,
+                0.592415644051,
+            ),
         ];
         for (pd, rho, q999, median, ex2, es999) in rows {
             let v = Vasicek::new(pd, rho, 1.0).unwrap();
@@ -358,17 +382,23 @@ mod tests {
             tail += in_u(&|y| y * v.density(y), lo, hi);
         }
         let es = v.expected_shortfall(q).unwrap();
-        assert!((tail / (1.0 - q) - es).abs() < 1e-10, "{} vs {es}", tail / (1.0 - q));
+        assert!(
+            (tail / (1.0 - q) - es).abs() < 1e-10,
+            "{} vs {es}",
+            tail / (1.0 - q)
+        );
     }
 
     // reference-values.md [hp]: median 0.00657105077249435 and 99.9 %
     // quantile 0.0903258313260653 invert to rho = 0.12, PD = 0.01.
     #[test]
     fn quantile_pair_check_value() {
-        let (pd, rho) = quantile_pair((0.5, 0.00657105077249435), (0.999, 0.0903258313260653)).unwrap();
+        let (pd, rho) =
+            quantile_pair((0.5, 0.00657105077249435), (0.999, 0.0903258313260653)).unwrap();
         assert!(close(pd, 0.01, CDF_REL), "{pd}");
         assert!(close(rho, 0.12, CDF_REL), "{rho}");
-        let (pd2, rho2) = quantile_pair((0.999, 0.0903258313260653), (0.5, 0.00657105077249435)).unwrap();
+        let (pd2, rho2) =
+            quantile_pair((0.999, 0.0903258313260653), (0.5, 0.00657105077249435)).unwrap();
         assert_eq!((pd, rho), (pd2, rho2));
     }
 

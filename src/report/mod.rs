@@ -1,1 +1,4 @@
 //! One report type per command.
+
+pub mod loss;
+pub mod realworld;
