@@ -90,11 +90,11 @@ pub fn build_loss(
     let irb = irb_corporate(pd, lgd, maturity, turnover_m)?;
     let mut notes = vec![
         format!(
-            "IRB: Basel II corporate formula at confidence {IRB_CONFIDENCE}, with its own \
-             supervisory correlation"
+            "IRB: Basel II corporate formula (confidence {IRB_CONFIDENCE}) with its own \
+             supervisory"
         ),
         format!(
-            "({}), not the input rho: a reference figure.",
+            "correlation {}, not the input rho: a reference figure.",
             fixed(irb.correlation, 4)
         ),
     ];
