@@ -148,7 +148,7 @@ impl Report for LossReport {
             ]);
         }
         let mut k = Table::new(&["quantity", "value"]).with_title(format!(
-            "Basel II IRB corporate capital (reference figure): PD {}%, LGD {}%, M {}",
+            "Basel II IRB corporate capital (reference): PD {}%, LGD {}%, M {}",
             pct(self.irb.pd),
             fixed(100.0 * self.irb.lgd, 2),
             self.irb.maturity
