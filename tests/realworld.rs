@@ -43,19 +43,38 @@ fn estimators_agree_with_independent_python_implementation() {
                 "binomial_ml" => binomial_ml(&history),
                 other => panic!("unknown method {other}"),
             };
-            let (tol_pd, tol_rho) = if method == "binomial_ml" { (1e-4, 1e-4) } else { (1e-6, 1e-5) };
+            let (tol_pd, tol_rho) = if method == "binomial_ml" {
+                (1e-4, 1e-4)
+            } else {
+                (1e-6, 1e-5)
+            };
             let (pd, rho) = (e.pd.unwrap(), e.rho.unwrap());
             let (wpd, wrho) = (want["pd"].as_f64().unwrap(), want["rho"].as_f64().unwrap());
-            assert!((pd - wpd).abs() < tol_pd, "{name} {method}: pd {pd} vs {wpd}");
-            assert!((rho - wrho).abs() < tol_rho, "{name} {method}: rho {rho} vs {wrho}");
+            assert!(
+                (pd - wpd).abs() < tol_pd,
+                "{name} {method}: pd {pd} vs {wpd}"
+            );
+            assert!(
+                (rho - wrho).abs() < tol_rho,
+                "{name} {method}: rho {rho} vs {wrho}"
+            );
             // Tighter than acceptance where the methods allow it.
             if method != "binomial_ml" {
-                assert!((pd - wpd).abs() < 1e-9 && (rho - wrho).abs() < 1e-8, "{name} {method}");
+                assert!(
+                    (pd - wpd).abs() < 1e-9 && (rho - wrho).abs() < 1e-8,
+                    "{name} {method}"
+                );
             } else {
-                assert!((pd - wpd).abs() < 1e-6 && (rho - wrho).abs() < 1e-5, "{name} {method}");
+                assert!(
+                    (pd - wpd).abs() < 1e-6 && (rho - wrho).abs() < 1e-5,
+                    "{name} {method}"
+                );
                 let ll = binomial_log_likelihood(&history.counts().unwrap(), pd, rho);
                 let wll = want["log_likelihood"].as_f64().unwrap();
-                assert!((ll - wll).abs() < 1e-7, "{name}: log-likelihood {ll} vs {wll}");
+                assert!(
+                    (ll - wll).abs() < 1e-7,
+                    "{name}: log-likelihood {ll} vs {wll}"
+                );
             }
             if let Some(se) = want.get("rho_se") {
                 assert!((e.rho_se.unwrap() - se.as_f64().unwrap()).abs() < 1e-9);
@@ -68,8 +87,7 @@ fn estimators_agree_with_independent_python_implementation() {
 
 /// No cell or JSON value is NaN or infinite.
 fn no_nan(out: &str) -> bool {
-    !out
-        .split(|c: char| c.is_whitespace() || c == ',' || c == '"' || c == ':' || c == '[')
+    !out.split(|c: char| c.is_whitespace() || c == ',' || c == '"' || c == ':' || c == '[')
         .any(|tok| ["NaN", "nan", "inf", "-inf", "Infinity", "-Infinity"].contains(&tok))
 }
 
@@ -105,7 +123,9 @@ fn realworld_runs_on_bundled_histories_in_every_format() {
                 let v: Value = serde_json::from_str(&out).unwrap();
                 let methods = v["methods"].as_array().unwrap();
                 for m in methods {
-                    for key in ["method", "pd", "rho", "pd_se", "rho_se", "pd_ci", "rho_ci", "notes"] {
+                    for key in [
+                        "method", "pd", "rho", "pd_se", "rho_se", "pd_ci", "rho_ci", "notes",
+                    ] {
                         assert!(m.get(key).is_some(), "{key} missing");
                     }
                 }
@@ -140,7 +160,10 @@ fn zero_default_years_stated_for_probit_numbers_for_the_others() {
             }
         } else {
             assert!(m["pd"].as_f64().unwrap() > 0.0 && m["rho"].as_f64().unwrap() > 0.0);
-            assert_eq!(m["zero_default_periods"].as_u64().unwrap(), zeros.len() as u64);
+            assert_eq!(
+                m["zero_default_periods"].as_u64().unwrap(),
+                zeros.len() as u64
+            );
         }
     }
 }
@@ -150,7 +173,11 @@ fn malformed_history_exits_2_with_line_and_column() {
     let dir = std::env::temp_dir().join(format!("skewbook-rw-{}", std::process::id()));
     std::fs::create_dir_all(&dir).unwrap();
     let path = dir.join("bad.csv");
-    std::fs::write(&path, "period,defaults,obligors\n2001,3,100\n2002,7,abc\n2003,1,50\n").unwrap();
+    std::fs::write(
+        &path,
+        "period,defaults,obligors\n2001,3,100\n2002,7,abc\n2003,1,50\n",
+    )
+    .unwrap();
     let p = path.to_str().unwrap();
     let (code, out, err) = skewbook(&["realworld", p]);
     assert_eq!(code, 2);
@@ -210,7 +237,8 @@ fn loss_command_matches_published_figures() {
     assert!((l["loss_quantile"].as_f64().unwrap() - 0.45 * 0.12823710729942).abs() < 1e-10);
     assert!((v["irb"]["risk_weight"].as_f64().unwrap() - 1.1486).abs() < 1e-4);
     for format in ["table", "csv"] {
-        let (code, out, _) = skewbook(&["loss", "--pd", "0.01", "--rho", "0.12", "--format", format]);
+        let (code, out, _) =
+            skewbook(&["loss", "--pd", "0.01", "--rho", "0.12", "--format", format]);
         assert_eq!(code, 0);
         assert!(no_nan(&out));
         for line in out.lines().filter(|_| format == "table") {

@@ -55,7 +55,10 @@ impl Tally {
         }
         // The reported interval is the k = 1 one.
         let [lo, hi] = e.rho_ci.unwrap();
-        assert_eq!(lo <= rho && rho <= hi, (eta_true - eta).abs() <= Z_975 * se_eta);
+        assert_eq!(
+            lo <= rho && rho <= hi,
+            (eta_true - eta).abs() <= Z_975 * se_eta
+        );
     }
     fn check(&self, name: &str) {
         let f = |n: usize| n as f64 / self.reps as f64;

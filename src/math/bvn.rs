@@ -78,6 +78,7 @@ pub fn bvn_cdf(h: f64, k: f64, r: f64) -> f64 {
 }
 
 #[cfg(test)]
+#[allow(clippy::excessive_precision)]
 mod tests {
     use super::*;
 
