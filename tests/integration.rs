@@ -1,7 +1,15 @@
 //! The one integration-test binary; each module is one area.
 
+/// The binary on malformed snapshots: exit 2, `path:line:col:` on stderr, no panic; `-` is stdin.
+mod cli_errors;
+/// Index legs and the hazard bootstrap.
+mod curve;
 /// Real-world calibration: estimators against an independent Python
 /// implementation, coverage by simulation, the `loss` and `realworld` commands.
 mod realworld;
 /// Coverage of the estimators' 95 % intervals on simulated histories.
 mod realworld_coverage;
+/// Snapshot reader: valid files, every validation rule, malformed fixtures, fuzzing.
+mod snapshot;
+/// Tranche legs, compound and base correlation.
+mod tranche;

@@ -46,6 +46,14 @@ fn parse_quantiles(items: &[String]) -> Result<Option<[(f64, f64); 2]>, Error> {
 
 /// Runs the command.
 pub fn run(args: crate::cli::RealworldArgs, out: &mut dyn Write) -> Result<Outcome, Failure> {
+    if let Some(snapshot) = &args.against {
+        // The risk-neutral comparison is not wired yet; refuse rather than
+        // silently print a report without it.
+        return Err(Failure::Lib(Error::msg(
+            ErrorKind::Usage,
+            format!("--against {snapshot}: the risk-neutral comparison is not built yet"),
+        )));
+    }
     let history = read_history(&args.file)?;
     let opts = Options {
         divisor: match args.variance_divisor {
