@@ -118,20 +118,8 @@ impl Report for CurveReport {
         self.dates
             .iter()
             .map(|d| {
-                let mut t = Table::new(&[
-                    "maturity",
-                    "quote",
-                    "hazard%",
-                    "surv",
-                    "default%",
-                    "annuity",
-                    "reprice err",
-                ])
-                .with_title(format!(
-                    "{}  recovery {}%",
-                    d.date,
-                    fixed(d.recovery * 100.0, 1)
-                ));
+                let mut t = Table::new(&["maturity", "quote", "hazard%", "surv", "default%", "annuity", "reprice err"])
+                    .with_title(format!("{}  recovery {}%", d.date, fixed(d.recovery * 100.0, 1)));
                 for p in &d.index {
                     t.push(vec![
                         p.maturity.clone(),

@@ -83,8 +83,7 @@ pub struct ImpliedTranche {
 impl ImpliedTranche {
     /// Whether this quote has a solution missing (drives exit status 1).
     pub fn unsolved(&self) -> bool {
-        self.compound_correlation.is_empty()
-            || (self.base_correlation.is_none() && !self.flags.contains(&"top_tranche"))
+        self.compound_correlation.is_empty() || (self.base_correlation.is_none() && !self.flags.contains(&"top_tranche"))
     }
 }
 
@@ -112,10 +111,7 @@ pub struct ImpliedReport {
 impl ImpliedReport {
     /// Whether any quote has no solution.
     pub fn any_unsolved(&self) -> bool {
-        self.dates
-            .iter()
-            .flat_map(|d| &d.tranches)
-            .any(ImpliedTranche::unsolved)
+        self.dates.iter().flat_map(|d| &d.tranches).any(ImpliedTranche::unsolved)
     }
 }
 
@@ -124,11 +120,7 @@ fn is_top(t: &TrancheQuote) -> bool {
 }
 
 /// Implied correlations for the tranches of one maturity (sorted by attachment).
-pub fn implied_for_maturity(
-    schedule: &TrancheSchedule,
-    recovery: f64,
-    tranches: &[&TrancheQuote],
-) -> Vec<ImpliedTranche> {
+pub fn implied_for_maturity(schedule: &TrancheSchedule, recovery: f64, tranches: &[&TrancheQuote]) -> Vec<ImpliedTranche> {
     let tiles = tiles_from_zero(tranches);
     // Base correlation at the previous detachment; None once the chain breaks.
     let mut chain: Option<f64> = Some(0.0);
@@ -161,10 +153,7 @@ pub fn implied_for_maturity(
         };
         if !tiles {
             flags.push("bounds_do_not_tile");
-            note = Some(
-                "the tranches of this maturity do not tile the capital structure from 0%"
-                    .to_string(),
-            );
+            note = Some("the tranches of this maturity do not tile the capital structure from 0%".to_string());
         } else if let Some(rho_a) = chain {
             if is_top(t) {
                 flags.push("top_tranche");
@@ -235,10 +224,7 @@ pub fn build(snapshot: &Snapshot, opts: &MarketOptions) -> Result<ImpliedReport>
         let mut i = 0;
         while i < md.tranches.len() {
             let m = md.tranches[i].maturity;
-            let group: Vec<&TrancheQuote> = md.tranches[i..]
-                .iter()
-                .take_while(|t| t.maturity == m)
-                .collect();
+            let group: Vec<&TrancheQuote> = md.tranches[i..].iter().take_while(|t| t.maturity == m).collect();
             i += group.len();
             let schedule = TrancheSchedule::new(md.date, m, &c.discount, &c.hazard);
             tranches.extend(implied_for_maturity(&schedule, c.recovery, &group));
@@ -257,10 +243,7 @@ fn pct_list(xs: &[f64]) -> String {
     if xs.is_empty() {
         "none".to_string()
     } else {
-        xs.iter()
-            .map(|x| fixed(x * 100.0, 2))
-            .collect::<Vec<_>>()
-            .join(" ")
+        xs.iter().map(|x| fixed(x * 100.0, 2)).collect::<Vec<_>>().join(" ")
     }
 }
 
@@ -279,21 +262,10 @@ impl Report for ImpliedReport {
             let mut i = 0;
             while i < d.tranches.len() {
                 let m = d.tranches[i].maturity.clone();
-                let group: Vec<&ImpliedTranche> = d.tranches[i..]
-                    .iter()
-                    .take_while(|t| t.maturity == m)
-                    .collect();
+                let group: Vec<&ImpliedTranche> = d.tranches[i..].iter().take_while(|t| t.maturity == m).collect();
                 i += group.len();
-                let mut t = Table::new(&[
-                    "tranche",
-                    "quote",
-                    "compound%",
-                    "base%",
-                    "EL%",
-                    "reprice",
-                    "flags",
-                ])
-                .with_title(format!("{}  tranches maturing {m}", d.date));
+                let mut t = Table::new(&["tranche", "quote", "compound%", "base%", "EL%", "reprice", "flags"])
+                    .with_title(format!("{}  tranches maturing {m}", d.date));
                 for r in group {
                     t.push(vec![
                         bounds_label(r.attach_pct, r.detach_pct),
@@ -313,10 +285,7 @@ impl Report for ImpliedReport {
                         ));
                     }
                     if let (Some(n), false) = (&r.base_note, r.flags.contains(&"top_tranche")) {
-                        t.notes.push(format!(
-                            "  {}: {n}",
-                            bounds_label(r.attach_pct, r.detach_pct)
-                        ));
+                        t.notes.push(format!("  {}: {n}", bounds_label(r.attach_pct, r.detach_pct)));
                     }
                 }
                 out.push(t);

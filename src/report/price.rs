@@ -76,12 +76,7 @@ pub struct PriceReport {
 }
 
 /// Prices one tranche at a flat correlation on its schedule.
-pub fn price_tranche(
-    schedule: &TrancheSchedule,
-    recovery: f64,
-    t: &TrancheQuote,
-    rho: f64,
-) -> PricedTranche {
+pub fn price_tranche(schedule: &TrancheSchedule, recovery: f64, t: &TrancheQuote, rho: f64) -> PricedTranche {
     let v = TrancheValuer {
         schedule,
         recovery,
@@ -123,12 +118,7 @@ pub fn build(snapshot: &Snapshot, opts: &MarketOptions, rho: f64) -> Result<Pric
         let mut schedule: Option<TrancheSchedule> = None;
         for t in &md.tranches {
             if schedule.as_ref().is_none_or(|s| s.maturity() != t.maturity) {
-                schedule = Some(TrancheSchedule::new(
-                    md.date,
-                    t.maturity,
-                    &c.discount,
-                    &c.hazard,
-                ));
+                schedule = Some(TrancheSchedule::new(md.date, t.maturity, &c.discount, &c.hazard));
             }
             let s = schedule.as_ref().expect("just set");
             tranches.push(price_tranche(s, c.recovery, t, rho));
@@ -157,21 +147,13 @@ impl Report for PriceReport {
         self.dates
             .iter()
             .map(|d| {
-                let mut t = Table::new(&[
-                    "maturity",
-                    "tranche",
-                    "quote",
-                    "upfront%",
-                    "spread bp",
-                    "EL%",
-                    "value",
-                ])
-                .with_title(format!(
-                    "{}  recovery {}%  correlation {}%",
-                    d.date,
-                    fixed(d.recovery * 100.0, 1),
-                    fixed(d.correlation * 100.0, 2)
-                ));
+                let mut t = Table::new(&["maturity", "tranche", "quote", "upfront%", "spread bp", "EL%", "value"])
+                    .with_title(format!(
+                        "{}  recovery {}%  correlation {}%",
+                        d.date,
+                        fixed(d.recovery * 100.0, 1),
+                        fixed(d.correlation * 100.0, 2)
+                    ));
                 for p in &d.tranches {
                     t.push(vec![
                         p.maturity.clone(),
