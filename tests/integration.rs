@@ -8,6 +8,11 @@ mod cli_errors;
 mod curve;
 /// Every bundled sample through every command and format.
 mod samples;
+/// Real-world calibration: estimators against an independent Python
+/// implementation, coverage by simulation, the `loss` and `realworld` commands.
+mod realworld;
+/// Coverage of the estimators' 95 % intervals on simulated histories.
+mod realworld_coverage;
 /// Snapshot reader: valid files, every validation rule, malformed fixtures, fuzzing.
 mod snapshot;
 /// Tranche legs, compound and base correlation.

@@ -7,7 +7,9 @@
 
 pub mod curve;
 pub mod implied;
+pub mod loss;
 pub mod price;
+pub mod realworld;
 
 use crate::curve::{MarketOptions, PoolCurves};
 use crate::error::{Error, Result};

@@ -109,9 +109,26 @@ pub struct LossArgs {
     /// Confidence levels, comma-separated fractions.
     #[arg(long, value_delimiter = ',', default_values_t = [0.99, 0.999])]
     pub levels: Vec<f64>,
+    /// Effective maturity in years for the IRB capital figure.
+    #[arg(long, value_name = "YEARS", default_value_t = 2.5)]
+    pub maturity: f64,
+    /// Annual turnover in millions for the IRB SME correlation adjustment
+    /// (clipped to 5..50); none by default.
+    #[arg(long, value_name = "MILLIONS")]
+    pub turnover: Option<f64>,
     /// Output format.
     #[arg(long, value_enum, default_value_t)]
     pub format: FormatArg,
+}
+
+/// Divisor of the sample variance in the moment estimators.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum, Default)]
+pub enum DivisorArg {
+    /// T, the maximum-likelihood form.
+    #[default]
+    T,
+    /// T - 1, the unbiased sample variance.
+    TMinus1,
 }
 
 /// `skewbook realworld`.
@@ -125,6 +142,16 @@ pub struct RealworldArgs {
     /// Confidence levels for loss quantiles, comma-separated fractions.
     #[arg(long, value_delimiter = ',', default_values_t = [0.99, 0.999])]
     pub levels: Vec<f64>,
+    /// Loss given default for the loss quantiles, a fraction (1: default rate).
+    #[arg(long, value_name = "L", default_value_t = 1.0)]
+    pub lgd: f64,
+    /// Divisor of the sample variance in probit_moments and moment_matching.
+    #[arg(long, value_enum, default_value_t)]
+    pub variance_divisor: DivisorArg,
+    /// Two quantiles of the one-period default rate, LEVEL:RATE,LEVEL:RATE in
+    /// fractions (e.g. 0.5:0.0066,0.999:0.09), for the quantile_pair estimator.
+    #[arg(long, value_name = "LEVEL:RATE,LEVEL:RATE", value_delimiter = ',')]
+    pub quantiles: Vec<String>,
     /// Output format.
     #[arg(long, value_enum, default_value_t)]
     pub format: FormatArg,
