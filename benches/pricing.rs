@@ -1,7 +1,87 @@
-//! Criterion benches.
-use criterion::{criterion_group, criterion_main, Criterion};
+//! Criterion benches of the pricing path: one tranche price, one compound
+//! solve, one base solve, the index bootstrap, and `implied` on one bundled
+//! snapshot and on the bundled history. Each asserts its result inside the
+//! timed loop so a broken build cannot bench a shortcut.
 
-fn noop(_c: &mut Criterion) {}
+use criterion::{black_box, criterion_group, criterion_main, Criterion};
+use skewbook::curve::{MarketOptions, PoolCurves};
+use skewbook::input::snapshot::read_snapshot;
+use skewbook::market::TrancheQuote;
+use skewbook::solve::base::{base_correlation, BaseSolve};
+use skewbook::solve::compound::compound_roots;
+use skewbook::tranche::{TrancheSchedule, TrancheValuer};
 
-criterion_group!(benches, noop);
+const SNAPSHOT: &str = "market-samples/hgx-2026-06-18.csv";
+const HISTORY: &str = "market-samples/hgx-history-2026-06.csv";
+
+fn pricing(c: &mut Criterion) {
+    let snap = read_snapshot(SNAPSHOT).expect("bundled snapshot");
+    let opts = MarketOptions::default();
+    let md = &snap.dates[0];
+    let curves = PoolCurves::build(md, &opts, SNAPSHOT).expect("curves");
+    let mezz: &TrancheQuote = &md.tranches[1];
+    let equity: &TrancheQuote = &md.tranches[0];
+    let schedule = TrancheSchedule::new(md.date, mezz.maturity, &curves.discount, &curves.hazard);
+    let v = |t: &TrancheQuote| TrancheValuer {
+        schedule: &schedule,
+        recovery: curves.recovery,
+        attach: t.attach,
+        detach: t.detach,
+        quote: t.quote,
+    };
+
+    c.bench_function("curve/bootstrap/4_pillars", |b| {
+        b.iter(|| {
+            let pc = PoolCurves::build(black_box(md), &opts, SNAPSHOT).expect("curves");
+            assert_eq!(pc.pillars.len(), md.index.len());
+        })
+    });
+    c.bench_function("tranche/schedule/5y", |b| {
+        b.iter(|| TrancheSchedule::new(md.date, black_box(mezz.maturity), &curves.discount, &curves.hazard))
+    });
+    c.bench_function("tranche/price/mezzanine_5y", |b| {
+        let val = v(mezz);
+        b.iter(|| {
+            let legs = val.legs_flat(black_box(0.3));
+            assert!(legs.annuity > 0.0);
+            legs
+        })
+    });
+    c.bench_function("solve/compound/mezzanine_5y", |b| {
+        let val = v(mezz);
+        b.iter(|| {
+            let s = compound_roots(black_box(&val));
+            assert!(!s.roots.is_empty());
+            s
+        })
+    });
+    c.bench_function("solve/base/equity_5y", |b| {
+        let val = v(equity);
+        b.iter(|| {
+            let s = base_correlation(black_box(&val), 0.0);
+            assert!(matches!(s, BaseSolve::Solved(_)));
+            s
+        })
+    });
+    c.bench_function("implied/snapshot/hgx", |b| {
+        b.iter(|| {
+            let r = skewbook::report::implied::build(black_box(&snap), &opts).expect("implied");
+            assert!(!r.any_unsolved());
+            r
+        })
+    });
+    let history = read_snapshot(HISTORY).expect("bundled history");
+    let mut group = c.benchmark_group("implied/history");
+    group.sample_size(20);
+    group.bench_function("hgx_22_dates", |b| {
+        b.iter(|| {
+            let r = skewbook::report::implied::build(black_box(&history), &opts).expect("implied");
+            assert_eq!(r.dates.len(), history.dates.len());
+            r
+        })
+    });
+    group.finish();
+}
+
+criterion_group!(benches, pricing);
 criterion_main!(benches);

@@ -1,4 +1,12 @@
 //! The one integration-test binary; each module is one area.
 
-// The command line against the independent Python implementation's fixtures.
+/// The binary on malformed snapshots: exit 2, `path:line:col:` on stderr, no panic; `-` is stdin.
+mod cli_errors;
+/// Index legs and the hazard bootstrap.
+mod curve;
+/// The command line against the independent Python implementation's fixtures.
 mod independent;
+/// Snapshot reader: valid files, every validation rule, malformed fixtures, fuzzing.
+mod snapshot;
+/// Tranche legs, compound and base correlation.
+mod tranche;

@@ -7,12 +7,15 @@
 //! - [`piecewise`]: the shared piecewise-constant rate with its integral;
 //! - [`discount`]: zero pillars (or a flat rate) to discount factors;
 //! - [`hazard`]: the pool hazard curve and its bootstrap from index quotes;
-//! - [`legs`]: index protection and premium legs integrated exactly.
+//! - [`legs`]: index protection and premium legs integrated exactly;
+//! - [`pool`]: one trade date's recovery and curves together.
 
 pub mod discount;
 pub mod hazard;
 pub mod legs;
 pub mod piecewise;
+pub mod pool;
 
 pub use discount::DiscountCurve;
 pub use hazard::{bootstrap, HazardCurve, Pillar};
+pub use pool::{MarketOptions, PoolCurves};

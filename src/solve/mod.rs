@@ -6,3 +6,5 @@
 //! - [`base`]: the base-correlation bootstrap per maturity.
 
 pub mod root;
+pub mod base;
+pub mod compound;

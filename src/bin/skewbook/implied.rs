@@ -1,12 +1,18 @@
-//! `skewbook implied`.
+//! `skewbook implied`: compound and base correlation from the quotes.
 
+use crate::cli::ImpliedArgs;
 use crate::{Failure, Outcome};
+use skewbook::output::write_report;
 use std::io::Write;
 
-/// Runs the command.
-pub fn run(_args: crate::cli::ImpliedArgs, _out: &mut dyn Write) -> Result<Outcome, Failure> {
-    Err(Failure::Lib(skewbook::Error::msg(
-        skewbook::ErrorKind::Usage,
-        "not built yet",
-    )))
+/// Runs the command: exit status 1 when some quote has no solution.
+pub fn run(args: ImpliedArgs, out: &mut dyn Write) -> Result<Outcome, Failure> {
+    let (snapshot, opts) = crate::curve::load(&args.market)?;
+    let report = skewbook::report::implied::build(&snapshot, &opts)?;
+    write_report(out, &report, args.market.format.into())?;
+    Ok(if report.any_unsolved() {
+        Outcome::Unsolved
+    } else {
+        Outcome::Clean
+    })
 }

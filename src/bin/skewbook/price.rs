@@ -1,12 +1,14 @@
-//! `skewbook price`.
+//! `skewbook price`: every tranche at one flat correlation.
 
+use crate::cli::PriceArgs;
 use crate::{Failure, Outcome};
+use skewbook::output::write_report;
 use std::io::Write;
 
 /// Runs the command.
-pub fn run(_args: crate::cli::PriceArgs, _out: &mut dyn Write) -> Result<Outcome, Failure> {
-    Err(Failure::Lib(skewbook::Error::msg(
-        skewbook::ErrorKind::Usage,
-        "not built yet",
-    )))
+pub fn run(args: PriceArgs, out: &mut dyn Write) -> Result<Outcome, Failure> {
+    let (snapshot, opts) = crate::curve::load(&args.market)?;
+    let report = skewbook::report::price::build(&snapshot, &opts, args.correlation)?;
+    write_report(out, &report, args.market.format.into())?;
+    Ok(Outcome::Clean)
 }

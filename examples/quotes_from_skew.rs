@@ -1,0 +1,208 @@
+//! Tranche quotes implied by a chosen base-correlation curve: the inverse
+//! of `skewbook implied`, and how the bundled market samples were made.
+//!
+//! ```text
+//! cargo run --example quotes_from_skew -- hgx       > market-samples/hgx-2026-06-18.csv
+//! cargo run --example quotes_from_skew -- lhy       > market-samples/lhy-2026-06-18.csv
+//! cargo run --example quotes_from_skew -- history   > market-samples/hgx-history-2026-06.csv
+//! ```
+//!
+//! Each scenario is invented: an index curve (par spreads, or upfronts with
+//! a fixed coupon), a base-correlation curve per detachment, and the coupon
+//! convention of each tranche. The example bootstraps the hazard curve,
+//! prices every tranche off the base curve, rounds the quotes as a desk would
+//! show them, and prints a snapshot file.
+
+use chrono::{Datelike, Days, NaiveDate, Weekday};
+use skewbook::curve::{MarketOptions, PoolCurves};
+use skewbook::market::{IndexQuote, MarketDate, Quote, ZeroPillar};
+use skewbook::tranche::{TrancheSchedule, TrancheValuer};
+
+/// A tranche of a scenario: bounds, coupon (None: quoted as a par spread)
+/// and the base correlation at the detachment.
+struct Layer {
+    attach: f64,
+    detach: f64,
+    coupon: Option<f64>,
+    base_rho: f64,
+}
+
+struct Scenario {
+    trade: NaiveDate,
+    recovery: f64,
+    index: Vec<(NaiveDate, Quote)>,
+    zeros: Vec<(NaiveDate, f64)>,
+    tranche_maturity: NaiveDate,
+    layers: Vec<Layer>,
+}
+
+fn d(y: i32, m: u32, day: u32) -> NaiveDate {
+    NaiveDate::from_ymd_opt(y, m, day).expect("valid date")
+}
+
+fn layers(spec: &[(f64, f64, Option<f64>, f64)]) -> Vec<Layer> {
+    spec.iter()
+        .map(|&(attach, detach, coupon, base_rho)| Layer {
+            attach,
+            detach,
+            coupon,
+            base_rho,
+        })
+        .collect()
+}
+
+/// Harbour Grade (HGX): an investment-grade-like pool, par spreads, a zero curve.
+fn hgx(trade: NaiveDate, shift_bp: f64, rho_shift: f64) -> Scenario {
+    let s = |bp: f64| Quote::Spread((bp + shift_bp) / 1e4);
+    Scenario {
+        trade,
+        recovery: 0.40,
+        index: vec![
+            (d(2029, 6, 20), s(38.0)),
+            (d(2031, 6, 20), s(58.0)),
+            (d(2033, 6, 20), s(74.0)),
+            (d(2036, 6, 20), s(88.0)),
+        ],
+        zeros: vec![
+            (d(2027, 6, 18), 0.0215),
+            (d(2028, 6, 19), 0.0232),
+            (d(2031, 6, 18), 0.0268),
+            (d(2036, 6, 18), 0.0305),
+        ],
+        tranche_maturity: d(2031, 6, 20),
+        layers: layers(&[
+            (0.00, 0.03, Some(0.05), 0.13 + rho_shift),
+            (0.03, 0.07, None, 0.24 + rho_shift),
+            (0.07, 0.15, None, 0.37 + rho_shift),
+            (0.15, 1.00, None, f64::NAN),
+        ]),
+    }
+}
+
+/// Lantern High Yield (LHY): a high-yield-like pool quoted upfront with a
+/// 500 bp coupon, recovery 30%, flat rates.
+fn lhy() -> Scenario {
+    let u = |pct: f64| Quote::Upfront {
+        upfront: pct / 100.0,
+        coupon: 0.05,
+    };
+    Scenario {
+        trade: d(2026, 6, 18),
+        recovery: 0.30,
+        index: vec![(d(2029, 6, 20), u(-2.35)), (d(2031, 6, 20), u(-0.60)), (d(2033, 6, 20), u(1.45))],
+        zeros: vec![],
+        tranche_maturity: d(2031, 6, 20),
+        layers: layers(&[
+            (0.00, 0.10, Some(0.05), 0.17),
+            (0.10, 0.15, Some(0.05), 0.25),
+            (0.15, 0.25, Some(0.05), 0.36),
+            (0.25, 0.35, Some(0.05), 0.46),
+            (0.35, 1.00, Some(0.05), f64::NAN),
+        ]),
+    }
+}
+
+fn round_to(x: f64, decimals: i32) -> f64 {
+    let f = 10f64.powi(decimals);
+    (x * f).round() / f
+}
+
+fn print_scenario(sc: &Scenario, header: bool) -> Result<(), skewbook::Error> {
+    let md = MarketDate {
+        date: sc.trade,
+        recovery: Some(sc.recovery),
+        index: sc
+            .index
+            .iter()
+            .map(|&(maturity, quote)| IndexQuote { maturity, quote, line: 0 })
+            .collect(),
+        tranches: vec![],
+        zeros: sc
+            .zeros
+            .iter()
+            .map(|&(date, rate)| ZeroPillar { date, rate, line: 0 })
+            .collect(),
+    };
+    let curves = PoolCurves::build(&md, &MarketOptions::default(), "scenario")?;
+    let schedule = TrancheSchedule::new(sc.trade, sc.tranche_maturity, &curves.discount, &curves.hazard);
+    if header {
+        println!("date,instrument,maturity,attach_pct,detach_pct,quote_kind,quote,coupon_bp,recovery_pct");
+    }
+    let rec = sc.recovery * 100.0;
+    for &(m, q) in &sc.index {
+        match q {
+            Quote::Spread(s) => println!("{},index,{m},,,spread_bp,{},,{rec}", sc.trade, round_to(s * 1e4, 3)),
+            Quote::Upfront { upfront, coupon } => println!(
+                "{},index,{m},,,upfront_pct,{},{},{rec}",
+                sc.trade,
+                round_to(upfront * 100.0, 4),
+                coupon * 1e4
+            ),
+        }
+    }
+    for &(date, r) in &sc.zeros {
+        println!("{},zero,{date},,,zero_rate_pct,{},,", sc.trade, round_to(r * 100.0, 4));
+    }
+    let mut rho_below = 0.0;
+    for l in &sc.layers {
+        let rho_d = if l.detach >= 1.0 { rho_below } else { l.base_rho };
+        let quote = match l.coupon {
+            Some(coupon) => Quote::Upfront { upfront: 0.0, coupon },
+            None => Quote::Spread(0.0),
+        };
+        let v = TrancheValuer {
+            schedule: &schedule,
+            recovery: sc.recovery,
+            attach: l.attach,
+            detach: l.detach,
+            quote,
+        };
+        let legs = v.legs(rho_below, rho_d);
+        let (a, dd) = (l.attach * 100.0, l.detach * 100.0);
+        let m = sc.tranche_maturity;
+        match l.coupon {
+            Some(c) => println!(
+                "{},tranche,{m},{a},{dd},upfront_pct,{},{},",
+                sc.trade,
+                round_to(v.model_upfront(&legs) * 100.0, 4),
+                c * 1e4
+            ),
+            None => {
+                let s = v.model_spread(&legs).unwrap_or(0.0);
+                println!("{},tranche,{m},{a},{dd},spread_bp,{},,", sc.trade, round_to(s * 1e4, 2))
+            }
+        }
+        rho_below = rho_d;
+    }
+    Ok(())
+}
+
+fn main() -> Result<(), skewbook::Error> {
+    let which = std::env::args().nth(1).unwrap_or_else(|| "hgx".to_string());
+    match which.as_str() {
+        "hgx" => print_scenario(&hgx(d(2026, 6, 18), 0.0, 0.0), true)?,
+        "lhy" => print_scenario(&lhy(), true)?,
+        "history" => {
+            // 22 business days of June 2026: spreads and correlations drift.
+            let mut date = d(2026, 6, 1);
+            let mut k = 0;
+            while date <= d(2026, 6, 30) {
+                if !matches!(date.weekday(), Weekday::Sat | Weekday::Sun) {
+                    let x = k as f64;
+                    let shift_bp = 3.0 * (x / 3.0).sin() + 0.15 * x;
+                    let rho_shift = 0.015 * (x / 4.0).cos() - 0.0008 * x;
+                    print_scenario(&hgx(date, shift_bp, rho_shift), k == 0)?;
+                    k += 1;
+                }
+                date = date + Days::new(1);
+            }
+        }
+        other => {
+            return Err(skewbook::Error::msg(
+                skewbook::ErrorKind::Usage,
+                format!("unknown scenario {other:?}: expected hgx, lhy or history"),
+            ))
+        }
+    }
+    Ok(())
+}

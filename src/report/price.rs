@@ -1,0 +1,214 @@
+//! `skewbook price`: every tranche of every date at one flat correlation.
+//!
+//! # JSON schema
+//! An array with one object per trade date:
+//! ```text
+//! { "date": "2026-06-19", "recovery": 0.4, "correlation": 0.3,
+//!   "tranches": [ {
+//!       "maturity": "2031-06-20", "attach_pct": 0.0, "detach_pct": 3.0,
+//!       "quote_kind": "upfront_pct", "quote": 35.5, "coupon_bp": 500.0 (null for spread quotes),
+//!       "model_upfront_pct": 36.1,   upfront at the row's coupon (0 bp for a spread row), percent
+//!       "model_spread_bp": 1890.2,   par running spread with no upfront, bp; null if the
+//!                                    tranche is certain to be wiped out (no annuity)
+//!       "expected_loss_pct": 41.2,   expected tranche loss at the protection end, % of tranche notional
+//!       "protection_leg": 0.38,      per unit tranche notional
+//!       "premium_annuity": 4.1,      per unit tranche notional and unit running spread (years)
+//!       "value": 0.0012              value to the protection buyer at the quote, per unit notional
+//!   } ] }
+//! ```
+
+use super::curves_for_all_dates;
+use crate::curve::MarketOptions;
+use crate::error::{Error, ErrorKind, Result};
+use crate::market::{Snapshot, TrancheQuote};
+use crate::output::{csv_num, fixed, fixed_or, Report, Table};
+use crate::tranche::{TrancheSchedule, TrancheValuer};
+use serde::Serialize;
+
+/// One tranche priced at a flat correlation.
+#[derive(Debug, Clone, Serialize, PartialEq)]
+pub struct PricedTranche {
+    /// Maturity, ISO 8601.
+    pub maturity: String,
+    /// Attachment, percent.
+    pub attach_pct: f64,
+    /// Detachment, percent.
+    pub detach_pct: f64,
+    /// `spread_bp` or `upfront_pct`.
+    pub quote_kind: &'static str,
+    /// The quote in its file unit.
+    pub quote: f64,
+    /// Coupon of an upfront quote, bp; null for a spread quote.
+    pub coupon_bp: Option<f64>,
+    /// Model upfront at the row's coupon, percent.
+    pub model_upfront_pct: f64,
+    /// Model par spread with no upfront, bp.
+    pub model_spread_bp: Option<f64>,
+    /// Expected tranche loss at the protection end, percent of tranche notional.
+    pub expected_loss_pct: f64,
+    /// Protection leg per unit tranche notional.
+    pub protection_leg: f64,
+    /// Premium annuity per unit tranche notional and unit spread.
+    pub premium_annuity: f64,
+    /// Value to the protection buyer at the quote.
+    pub value: f64,
+}
+
+/// One date of the price report.
+#[derive(Debug, Clone, Serialize, PartialEq)]
+pub struct PriceDate {
+    /// Trade date.
+    pub date: String,
+    /// Recovery (fraction).
+    pub recovery: f64,
+    /// The flat correlation used (fraction).
+    pub correlation: f64,
+    /// Tranches by maturity then attachment.
+    pub tranches: Vec<PricedTranche>,
+}
+
+/// The whole `price` report.
+#[derive(Debug, Clone, Serialize, PartialEq)]
+#[serde(transparent)]
+pub struct PriceReport {
+    /// Dates in order.
+    pub dates: Vec<PriceDate>,
+}
+
+/// Prices one tranche at a flat correlation on its schedule.
+pub fn price_tranche(schedule: &TrancheSchedule, recovery: f64, t: &TrancheQuote, rho: f64) -> PricedTranche {
+    let v = TrancheValuer {
+        schedule,
+        recovery,
+        attach: t.attach,
+        detach: t.detach,
+        quote: t.quote,
+    };
+    let legs = v.legs_flat(rho);
+    PricedTranche {
+        maturity: t.maturity.to_string(),
+        attach_pct: t.attach * 100.0,
+        detach_pct: t.detach * 100.0,
+        quote_kind: t.quote.kind_name(),
+        quote: t.quote.in_file_unit(),
+        coupon_bp: t.quote.coupon_bp(),
+        model_upfront_pct: v.model_upfront(&legs) * 100.0,
+        model_spread_bp: v.model_spread(&legs).map(|s| s * 1e4),
+        expected_loss_pct: legs.expected_loss * 100.0,
+        protection_leg: legs.protection,
+        premium_annuity: legs.annuity,
+        value: v.value(&legs),
+    }
+}
+
+/// Prices every tranche of every date at correlation `rho`.
+///
+/// # Errors
+/// [`ErrorKind::Usage`] for rho outside (0, 1); curve errors of any date.
+pub fn build(snapshot: &Snapshot, opts: &MarketOptions, rho: f64) -> Result<PriceReport> {
+    if !(rho > 0.0 && rho < 1.0) {
+        return Err(Error::msg(
+            ErrorKind::Usage,
+            format!("--correlation: expected a fraction in (0, 1), found {rho}"),
+        ));
+    }
+    let mut dates = Vec::new();
+    for (md, c) in curves_for_all_dates(snapshot, opts)? {
+        let mut tranches = Vec::with_capacity(md.tranches.len());
+        let mut schedule: Option<TrancheSchedule> = None;
+        for t in &md.tranches {
+            if schedule.as_ref().is_none_or(|s| s.maturity() != t.maturity) {
+                schedule = Some(TrancheSchedule::new(md.date, t.maturity, &c.discount, &c.hazard));
+            }
+            let s = schedule.as_ref().expect("just set");
+            tranches.push(price_tranche(s, c.recovery, t, rho));
+        }
+        dates.push(PriceDate {
+            date: md.date.to_string(),
+            recovery: c.recovery,
+            correlation: rho,
+            tranches,
+        });
+    }
+    Ok(PriceReport { dates })
+}
+
+/// `0-3` for the table.
+pub(crate) fn bounds_label(attach_pct: f64, detach_pct: f64) -> String {
+    let f = |x: f64| {
+        let s = format!("{x:.4}");
+        s.trim_end_matches('0').trim_end_matches('.').to_string()
+    };
+    format!("{}-{}", f(attach_pct), f(detach_pct))
+}
+
+impl Report for PriceReport {
+    fn sections(&self) -> Vec<Table> {
+        self.dates
+            .iter()
+            .map(|d| {
+                let mut t = Table::new(&["maturity", "tranche", "quote", "upfront%", "spread bp", "EL%", "value"])
+                    .with_title(format!(
+                        "{}  recovery {}%  correlation {}%",
+                        d.date,
+                        fixed(d.recovery * 100.0, 1),
+                        fixed(d.correlation * 100.0, 2)
+                    ));
+                for p in &d.tranches {
+                    t.push(vec![
+                        p.maturity.clone(),
+                        bounds_label(p.attach_pct, p.detach_pct),
+                        super::curve::quote_label(p.quote_kind, p.quote, p.coupon_bp),
+                        fixed(p.model_upfront_pct, 4),
+                        fixed_or(p.model_spread_bp, 2, "-"),
+                        fixed(p.expected_loss_pct, 3),
+                        fixed(p.value, 6),
+                    ]);
+                }
+                t
+            })
+            .collect()
+    }
+
+    fn csv(&self) -> Table {
+        let mut t = Table::new(&[
+            "date",
+            "recovery_pct",
+            "correlation",
+            "maturity",
+            "attach_pct",
+            "detach_pct",
+            "quote_kind",
+            "quote",
+            "coupon_bp",
+            "model_upfront_pct",
+            "model_spread_bp",
+            "expected_loss_pct",
+            "protection_leg",
+            "premium_annuity",
+            "value",
+        ]);
+        for d in &self.dates {
+            for p in &d.tranches {
+                t.push(vec![
+                    d.date.clone(),
+                    csv_num(Some(d.recovery * 100.0)),
+                    csv_num(Some(d.correlation)),
+                    p.maturity.clone(),
+                    csv_num(Some(p.attach_pct)),
+                    csv_num(Some(p.detach_pct)),
+                    p.quote_kind.to_string(),
+                    csv_num(Some(p.quote)),
+                    csv_num(p.coupon_bp),
+                    csv_num(Some(p.model_upfront_pct)),
+                    csv_num(p.model_spread_bp),
+                    csv_num(Some(p.expected_loss_pct)),
+                    csv_num(Some(p.protection_leg)),
+                    csv_num(Some(p.premium_annuity)),
+                    csv_num(Some(p.value)),
+                ]);
+            }
+        }
+        t
+    }
+}

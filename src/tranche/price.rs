@@ -1,0 +1,125 @@
+//! Tranche legs, value to the protection buyer, and model quotes.
+//!
+//! # Formula
+//! Per unit of tranche notional, with base legs in pool units,
+//! W = D - A and DF(ts) the discount factor to the upfront's settlement:
+//! ```text
+//! protection = (prot_D(rho_D) - prot_A(rho_A)) / W
+//! annuity    = (ann_D(rho_D)  - ann_A(rho_A))  / W
+//! value      = protection - c · annuity - u · DF(ts)      (protection buyer)
+//! model upfront at coupon c = (protection - c · annuity) / DF(ts)
+//! model par spread          = protection / annuity
+//! ```
+//! A `spread_bp` quote s is the case c = s, u = 0.
+
+use super::legs::TrancheSchedule;
+use crate::market::Quote;
+
+/// Legs of one tranche per unit of tranche notional.
+#[derive(Debug, Clone, Copy, PartialEq, Default)]
+pub struct TrancheLegs {
+    /// Protection leg.
+    pub protection: f64,
+    /// Premium annuity per unit running spread.
+    pub annuity: f64,
+    /// d protection / d rho_D (with rho_A held; both move for a flat rho
+    /// when built by [`TrancheValuer::legs_flat`]).
+    pub d_protection: f64,
+    /// d annuity / d rho, as for `d_protection`.
+    pub d_annuity: f64,
+    /// Expected tranche loss at the protection end, fraction of the width,
+    /// clamped to [0, 1] (a thin senior tranche's difference of two base
+    /// losses can come out -1e-17).
+    pub expected_loss: f64,
+}
+
+/// A tranche with its quote on a precomputed schedule.
+#[derive(Debug, Clone, Copy)]
+pub struct TrancheValuer<'a> {
+    /// The schedule (discounting, default probabilities).
+    pub schedule: &'a TrancheSchedule,
+    /// Recovery of the pool.
+    pub recovery: f64,
+    /// Attachment (fraction).
+    pub attach: f64,
+    /// Detachment (fraction).
+    pub detach: f64,
+    /// The tranche's quote.
+    pub quote: Quote,
+}
+
+impl TrancheValuer<'_> {
+    /// Running spread paid alongside the upfront (the coupon, or the quoted par spread).
+    pub fn running(&self) -> f64 {
+        match self.quote {
+            Quote::Spread(s) => s,
+            Quote::Upfront { coupon, .. } => coupon,
+        }
+    }
+
+    /// Upfront paid by the protection buyer (0 for a par-spread quote).
+    pub fn upfront(&self) -> f64 {
+        match self.quote {
+            Quote::Spread(_) => 0.0,
+            Quote::Upfront { upfront, .. } => upfront,
+        }
+    }
+
+    /// Legs with the attachment's base at `rho_attach` and the detachment's
+    /// at `rho_detach`. Derivatives are in `rho_detach` only.
+    pub fn legs(&self, rho_attach: f64, rho_detach: f64) -> TrancheLegs {
+        let w = self.detach - self.attach;
+        let d = self.schedule.base_legs(self.recovery, self.detach, rho_detach);
+        let a = self.schedule.base_legs(self.recovery, self.attach, rho_attach);
+        TrancheLegs {
+            protection: (d.protection - a.protection) / w,
+            annuity: (d.annuity - a.annuity) / w,
+            d_protection: d.d_protection / w,
+            d_annuity: d.d_annuity / w,
+            expected_loss: ((d.expected_loss - a.expected_loss) / w).clamp(0.0, 1.0),
+        }
+    }
+
+    /// Legs at one flat correlation, derivatives in that correlation.
+    pub fn legs_flat(&self, rho: f64) -> TrancheLegs {
+        let w = self.detach - self.attach;
+        let d = self.schedule.base_legs(self.recovery, self.detach, rho);
+        let a = self.schedule.base_legs(self.recovery, self.attach, rho);
+        TrancheLegs {
+            protection: (d.protection - a.protection) / w,
+            annuity: (d.annuity - a.annuity) / w,
+            d_protection: (d.d_protection - a.d_protection) / w,
+            d_annuity: (d.d_annuity - a.d_annuity) / w,
+            expected_loss: ((d.expected_loss - a.expected_loss) / w).clamp(0.0, 1.0),
+        }
+    }
+
+    /// Value to the protection buyer at the quote, per unit tranche notional.
+    pub fn value(&self, legs: &TrancheLegs) -> f64 {
+        legs.protection - self.running() * legs.annuity - self.upfront() * self.schedule.df_settlement()
+    }
+
+    /// d value / d rho from the legs' derivatives.
+    pub fn d_value(&self, legs: &TrancheLegs) -> f64 {
+        legs.d_protection - self.running() * legs.d_annuity
+    }
+
+    /// Model upfront (fraction) at the quote's coupon (0 for a spread quote).
+    pub fn model_upfront(&self, legs: &TrancheLegs) -> f64 {
+        (legs.protection - self.quote.coupon() * legs.annuity) / self.schedule.df_settlement()
+    }
+
+    /// Model par spread (fraction) with no upfront; `None` when the annuity
+    /// vanishes (a tranche wiped out with certainty).
+    pub fn model_spread(&self, legs: &TrancheLegs) -> Option<f64> {
+        (legs.annuity > 1e-14).then(|| legs.protection / legs.annuity)
+    }
+
+    /// The model quote in the quote's file unit (bp or percent).
+    pub fn model_quote(&self, legs: &TrancheLegs) -> Option<f64> {
+        match self.quote {
+            Quote::Spread(_) => self.model_spread(legs).map(|s| s * 1e4),
+            Quote::Upfront { .. } => Some(self.model_upfront(legs) * 100.0),
+        }
+    }
+}

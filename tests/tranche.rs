@@ -1,0 +1,153 @@
+//! Tranche pricing and the correlation solvers against laws of the model
+//! and round trips.
+
+use chrono::NaiveDate;
+use skewbook::curve::{DiscountCurve, HazardCurve};
+use skewbook::market::{Quote, TrancheQuote};
+use skewbook::report::implied::implied_for_maturity;
+use skewbook::solve::compound::compound_roots;
+use skewbook::tranche::{TrancheSchedule, TrancheValuer};
+
+fn d(y: i32, m: u32, day: u32) -> NaiveDate {
+    NaiveDate::from_ymd_opt(y, m, day).unwrap()
+}
+
+const TRADE: (i32, u32, u32) = (2026, 6, 18);
+
+fn schedule(hazard: f64, rate: f64, maturity: NaiveDate) -> TrancheSchedule {
+    let trade = d(TRADE.0, TRADE.1, TRADE.2);
+    TrancheSchedule::new(trade, maturity, &DiscountCurve::flat(rate), &HazardCurve::flat(hazard))
+}
+
+fn valuer(s: &TrancheSchedule, recovery: f64, attach: f64, detach: f64, quote: Quote) -> TrancheValuer<'_> {
+    TrancheValuer {
+        schedule: s,
+        recovery,
+        attach,
+        detach,
+        quote,
+    }
+}
+
+/// Law of the model: tranches spanning [0, 100%] lose, width-weighted,
+/// the pool's expected loss (1 - R) PD(t), whatever the correlation.
+#[test]
+fn capital_structure_losses_add_up_to_the_pool_loss() {
+    let bounds = [0.0, 0.03, 0.07, 0.15, 1.0];
+    for maturity in [d(2027, 6, 20), d(2031, 6, 20), d(2036, 6, 20)] {
+        let s = schedule(0.012, 0.03, maturity);
+        let pool = (1.0 - 0.4) * s.default_probability();
+        for rho in [0.0001, 0.05, 0.3, 0.7, 0.9999] {
+            let total: f64 = bounds
+                .windows(2)
+                .map(|w| {
+                    let v = valuer(&s, 0.4, w[0], w[1], Quote::Spread(0.0));
+                    v.legs_flat(rho).expected_loss * (w[1] - w[0])
+                })
+                .sum();
+            assert!((total - pool).abs() < 1e-13, "{maturity} rho {rho}: {total} vs {pool}");
+        }
+    }
+}
+
+/// Law of the model: the [0, 100%] tranche does not depend on correlation,
+/// and its protection leg equals the index protection leg's loss part.
+#[test]
+fn whole_pool_tranche_is_correlation_free() {
+    let s = schedule(0.02, 0.02, d(2031, 6, 20));
+    let v = valuer(&s, 0.4, 0.0, 1.0, Quote::Spread(0.0));
+    let a = v.legs_flat(0.05);
+    let b = v.legs_flat(0.85);
+    assert!((a.protection - b.protection).abs() < 1e-14);
+    assert!((a.annuity - b.annuity).abs() < 1e-13);
+}
+
+/// For an equity tranche [0, D], compound and base correlation are the same
+/// number: both solve the same equation.
+#[test]
+fn equity_compound_equals_base() {
+    let m = d(2031, 6, 20);
+    let s = schedule(0.01, 0.025, m);
+    let q = TrancheQuote {
+        maturity: m,
+        attach: 0.0,
+        detach: 0.03,
+        quote: Quote::Upfront {
+            upfront: 0.32,
+            coupon: 0.05,
+        },
+        line: 2,
+    };
+    let out = implied_for_maturity(&s, 0.4, &[&q]);
+    assert_eq!(out[0].compound_correlation.len(), 1);
+    let (c, b) = (out[0].compound_correlation[0], out[0].base_correlation.unwrap());
+    assert!((c - b).abs() < 1e-10, "{c} vs {b}");
+}
+
+/// Round trip: quotes generated from a chosen base-correlation curve come
+/// back to that curve to 1e-8, and reprice to 1e-8 of their unit.
+#[test]
+fn base_correlation_round_trip() {
+    let m = d(2031, 6, 20);
+    let s = schedule(0.011, 0.028, m);
+    let layers = [(0.0, 0.03, 0.12, Some(0.05)), (0.03, 0.07, 0.23, None), (0.07, 0.15, 0.36, None), (0.15, 0.3, 0.52, Some(0.01))];
+    let mut quotes = Vec::new();
+    let mut below = 0.0;
+    for &(a, dd, rho, coupon) in &layers {
+        let probe = match coupon {
+            Some(c) => Quote::Upfront { upfront: 0.0, coupon: c },
+            None => Quote::Spread(0.0),
+        };
+        let v = valuer(&s, 0.4, a, dd, probe);
+        let legs = v.legs(below, rho);
+        let quote = match coupon {
+            Some(c) => Quote::Upfront { upfront: v.model_upfront(&legs), coupon: c },
+            None => Quote::Spread(v.model_spread(&legs).unwrap()),
+        };
+        quotes.push(TrancheQuote { maturity: m, attach: a, detach: dd, quote, line: 2 });
+        below = rho;
+    }
+    let refs: Vec<&TrancheQuote> = quotes.iter().collect();
+    let out = implied_for_maturity(&s, 0.4, &refs);
+    for (r, &(_, _, rho, _)) in out.iter().zip(&layers) {
+        let b = r.base_correlation.expect("solved");
+        assert!((b - rho).abs() < 1e-8, "{} vs {rho}", b);
+        assert!(r.base_reprice_error.unwrap().abs() < 1e-8);
+    }
+}
+
+/// A mezzanine spread generated at a low correlation is met again at a high
+/// one (its expected loss rises, then falls with correlation): both roots
+/// are found, and each reprices the quote.
+#[test]
+fn mezzanine_with_two_compound_roots() {
+    let m = d(2031, 6, 20);
+    let s = schedule(0.01, 0.0, m);
+    let probe = valuer(&s, 0.4, 0.03, 0.07, Quote::Spread(0.0));
+    let spread = probe.model_spread(&probe.legs_flat(0.05)).unwrap();
+    let v = valuer(&s, 0.4, 0.03, 0.07, Quote::Spread(spread));
+    let sol = compound_roots(&v);
+    assert_eq!(sol.roots.len(), 2, "{:?}", sol.roots);
+    assert!((sol.roots[0].value - 0.05).abs() < 1e-9);
+    let other = sol.roots[1].value;
+    assert!(other > 0.3, "{other}");
+    let back = v.model_spread(&v.legs_flat(other)).unwrap();
+    assert!((back - spread).abs() * 1e4 < 1e-8);
+}
+
+/// A mezzanine spread above the model's peak has no compound correlation:
+/// none is invented, and the attainable range says why.
+#[test]
+fn mezzanine_above_the_peak_has_no_root() {
+    let m = d(2031, 6, 20);
+    let s = schedule(0.01, 0.0, m);
+    let probe = valuer(&s, 0.4, 0.03, 0.07, Quote::Spread(0.0));
+    let peak = (1..200)
+        .map(|i| probe.model_spread(&probe.legs_flat(i as f64 / 200.0)).unwrap())
+        .fold(0.0, f64::max);
+    let v = valuer(&s, 0.4, 0.03, 0.07, Quote::Spread(peak * 1.05));
+    let sol = compound_roots(&v);
+    assert!(sol.roots.is_empty());
+    assert!(sol.attainable.1 < peak * 1.05 * 1e4);
+    assert!((sol.attainable.1 / (peak * 1e4) - 1.0).abs() < 1e-3);
+}
