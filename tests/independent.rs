@@ -20,6 +20,11 @@ use std::process::Command;
 
 /// Hazard rates, relative.
 const HAZARD_REL: f64 = 1e-6;
+/// Index risky annuity (premium leg per unit spread, with accrued on default), relative.
+const ANNUITY_REL: f64 = 1e-8;
+/// Index quote repriced on the bootstrapped curve, in the quote's unit (bp or
+/// percent points): the contract's bootstrap tolerance.
+const REPRICE: f64 = 1e-8;
 /// Compound and base correlations, absolute.
 const CORRELATION_ABS: f64 = 2e-4;
 /// Model upfront, percentage points.
@@ -212,6 +217,19 @@ fn check_curve(sc: &Scenario) {
                 hw,
                 HAZARD_REL * hw.abs(),
                 &format!("{date} index {m} hazard"),
+            ));
+            let (ag, aw) = (num(g, "annuity", m), num(w, "annuity", m));
+            problems.extend(close(
+                ag,
+                aw,
+                ANNUITY_REL * aw.abs(),
+                &format!("{date} index {m} annuity"),
+            ));
+            problems.extend(close(
+                num(g, "repriced_quote", m),
+                num(w, "quote", m),
+                REPRICE,
+                &format!("{date} index {m} repriced quote"),
             ));
         }
     }
