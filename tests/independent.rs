@@ -38,7 +38,10 @@ const EXPECTED_LOSS_PP: f64 = 1e-4;
 /// `--correlation`, which `price` alone takes). Keep in step with `RUNS` in
 /// `tests/reference/make_scenarios.py`.
 struct Scenario {
+    /// Fixture name (`tests/fixtures/independent/<name>.json`).
     name: &'static str,
+    /// Snapshot name (`tests/fixtures/scenarios/<file>.csv`).
+    file: &'static str,
     options: &'static [&'static str],
     correlation: &'static str,
 }
@@ -46,28 +49,45 @@ struct Scenario {
 const SCENARIOS: &[Scenario] = &[
     Scenario {
         name: "ig_pool",
+        file: "ig_pool",
         options: &[],
         correlation: "0.3",
     },
     Scenario {
         name: "hy_pool",
+        file: "hy_pool",
         options: &["--rate", "2.5"],
         correlation: "0.25",
     },
     Scenario {
         name: "zero_curve",
+        file: "zero_curve",
         options: &[],
         correlation: "0.3",
     },
     Scenario {
         name: "calendar_edges",
+        file: "calendar_edges",
         options: &["--recovery", "35"],
         correlation: "0.35",
     },
     Scenario {
         name: "compound_roots",
+        file: "compound_roots",
         options: &[],
         correlation: "0.2",
+    },
+    Scenario {
+        name: "ig_pool_rho_low",
+        file: "ig_pool",
+        options: &[],
+        correlation: "0.0001",
+    },
+    Scenario {
+        name: "ig_pool_rho_high",
+        file: "ig_pool",
+        options: &[],
+        correlation: "0.9999",
     },
 ];
 
@@ -86,7 +106,7 @@ fn fixture(name: &str) -> Value {
 /// Runs the binary; `ok_codes` are the exit statuses accepted (implied exits 1
 /// when some quote has no solution, and still prints every row).
 fn run(command: &str, sc: &Scenario, extra: &[&str], ok_codes: &[i32]) -> Value {
-    let file = root().join(format!("tests/fixtures/scenarios/{}.csv", sc.name));
+    let file = root().join(format!("tests/fixtures/scenarios/{}.csv", sc.file));
     let out = Command::new(env!("CARGO_BIN_EXE_skewbook"))
         .arg(command)
         .arg(&file)
@@ -366,6 +386,8 @@ scenario_tests! {
     zero_curve => 2,
     calendar_edges => 3,
     compound_roots => 4,
+    ig_pool_rho_low => 5,
+    ig_pool_rho_high => 6,
 }
 
 #[test]
@@ -377,6 +399,12 @@ fn scenario_list_matches_fixtures() {
         let command = doc["metadata"]["command"]
             .as_str()
             .expect("metadata.command");
+        let file = format!("tests/fixtures/scenarios/{}.csv ", sc.file);
+        assert!(
+            command.contains(&file),
+            "{}: fixture made with `{command}`",
+            sc.name
+        );
         for opt in sc.options {
             assert!(
                 command.contains(opt),

@@ -621,6 +621,23 @@ def self_check():
         phi2 = multivariate_normal(mean=[0, 0], cov=[[1, r], [r, 1]]).cdf([c, -A])
         check(f"closed form vs quad pd {pd} rho {rho} k {k}", expected_min_p(pd, rho, k), phi2 + k * special.ndtr(A), 1e-8)
 
+    # 3b. the ends of the correlation range against 40-digit mpmath quadrature
+    #     (split at the kink and at fixed offsets above it)
+    import mpmath as mp
+
+    mp.mp.dps = 40
+
+    def e_min_mp(pd, rho, k):
+        pd, rho, k = mp.mpf(pd), mp.mpf(rho), mp.mpf(k)
+        g = lambda x: mp.sqrt(2) * mp.erfinv(2 * x - 1)
+        c, sr, s1 = g(pd), mp.sqrt(rho), mp.sqrt(1 - rho)
+        zk = (c - s1 * g(k)) / sr
+        f = lambda z: mp.ncdf((c - sr * z) / s1) * mp.npdf(z)
+        return k * mp.ncdf(zk) + mp.quad(f, [zk + x for x in (0, 1, 2, 4, 8, 16, 40)])
+
+    for pd, rho, k in [(0.0493, 1e-4, 0.05), (0.0493, 1e-4, 0.049), (0.08, 0.9991, 0.25), (0.0493, 0.9999, 0.05), (3e-5, 0.9999, 0.05)]:
+        check(f"E[min(p,k)] vs mpmath pd {pd} rho {rho} k {k}", expected_min_p(pd, rho, k), float(e_min_mp(pd, rho, k)), 1e-16)
+
     # 4. two compound roots of the [3,7%] one-horizon EL [reference-values.md]
     f = lambda rho: tranche_loss_and_notional(0.05, rho, 0.03, 0.07, 0.4)[0] - 0.130954
     roots = all_roots(f)

@@ -12,7 +12,7 @@ the files carry no names at all.
 Then runs independent.py on each (options in RUNS) and writes the outputs with
 their command line and library versions to tests/fixtures/independent/.
 
-Usage: python3 tests/reference/make_scenarios.py [--fixtures-only]
+Usage: python3 tests/reference/make_scenarios.py [--fixtures-only] [FIXTURE_NAME ...]
 """
 
 import csv
@@ -216,11 +216,14 @@ def compound_roots(outdir):
 
 # Command-line options each scenario is run with, here and in tests/independent.rs.
 RUNS = {
-    "ig_pool": ["--correlation", "0.3"],
-    "hy_pool": ["--rate", "2.5", "--correlation", "0.25"],
-    "zero_curve": ["--correlation", "0.3"],
-    "calendar_edges": ["--recovery", "35", "--correlation", "0.35"],
-    "compound_roots": ["--correlation", "0.2"],
+    "ig_pool": ("ig_pool", ["--correlation", "0.3"]),
+    "hy_pool": ("hy_pool", ["--rate", "2.5", "--correlation", "0.25"]),
+    "zero_curve": ("zero_curve", ["--correlation", "0.3"]),
+    "calendar_edges": ("calendar_edges", ["--recovery", "35", "--correlation", "0.35"]),
+    "compound_roots": ("compound_roots", ["--correlation", "0.2"]),
+    # the same pool priced at the ends of the correlation range
+    "ig_pool_rho_low": ("ig_pool", ["--correlation", "0.0001"]),
+    "ig_pool_rho_high": ("ig_pool", ["--correlation", "0.9999"]),
 }
 
 
@@ -236,8 +239,11 @@ def run_fixtures(root):
 
     outdir = os.path.join(root, "tests", "fixtures", "independent")
     os.makedirs(outdir, exist_ok=True)
-    for name, opts in RUNS.items():
-        cmd = ["python3", "tests/reference/independent.py", f"tests/fixtures/scenarios/{name}.csv"] + opts + ["--time"]
+    only = [a for a in sys.argv[1:] if not a.startswith("--")]
+    for name, (scenario, opts) in RUNS.items():
+        if only and name not in only:
+            continue
+        cmd = ["python3", "tests/reference/independent.py", f"tests/fixtures/scenarios/{scenario}.csv"] + opts + ["--time"]
         res = subprocess.run(cmd, cwd=root, check=True, capture_output=True, text=True)
         doc = dict(
             metadata=dict(
