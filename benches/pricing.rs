@@ -37,7 +37,14 @@ fn pricing(c: &mut Criterion) {
         })
     });
     c.bench_function("tranche/schedule/5y", |b| {
-        b.iter(|| TrancheSchedule::new(md.date, black_box(mezz.maturity), &curves.discount, &curves.hazard))
+        b.iter(|| {
+            TrancheSchedule::new(
+                md.date,
+                black_box(mezz.maturity),
+                &curves.discount,
+                &curves.hazard,
+            )
+        })
     });
     c.bench_function("tranche/price/mezzanine_5y", |b| {
         let val = v(mezz);

@@ -71,9 +71,9 @@ fn hgx(trade: NaiveDate, shift_bp: f64, rho_shift: f64) -> Scenario {
         ],
         tranche_maturity: d(2031, 6, 20),
         layers: layers(&[
-            (0.00, 0.03, Some(0.05), 0.13 + rho_shift),
-            (0.03, 0.07, None, 0.24 + rho_shift),
-            (0.07, 0.15, None, 0.37 + rho_shift),
+            (0.00, 0.03, Some(0.05), 0.18 + rho_shift),
+            (0.03, 0.07, None, 0.28 + rho_shift),
+            (0.07, 0.15, None, 0.41 + rho_shift),
             (0.15, 1.00, None, f64::NAN),
         ]),
     }
@@ -89,7 +89,11 @@ fn lhy() -> Scenario {
     Scenario {
         trade: d(2026, 6, 18),
         recovery: 0.30,
-        index: vec![(d(2029, 6, 20), u(-2.35)), (d(2031, 6, 20), u(-0.60)), (d(2033, 6, 20), u(1.45))],
+        index: vec![
+            (d(2029, 6, 20), u(-2.35)),
+            (d(2031, 6, 20), u(-0.60)),
+            (d(2033, 6, 20), u(1.45)),
+        ],
         zeros: vec![],
         tranche_maturity: d(2031, 6, 20),
         layers: layers(&[
@@ -114,24 +118,41 @@ fn print_scenario(sc: &Scenario, header: bool) -> Result<(), skewbook::Error> {
         index: sc
             .index
             .iter()
-            .map(|&(maturity, quote)| IndexQuote { maturity, quote, line: 0 })
+            .map(|&(maturity, quote)| IndexQuote {
+                maturity,
+                quote,
+                line: 0,
+            })
             .collect(),
         tranches: vec![],
         zeros: sc
             .zeros
             .iter()
-            .map(|&(date, rate)| ZeroPillar { date, rate, line: 0 })
+            .map(|&(date, rate)| ZeroPillar {
+                date,
+                rate,
+                line: 0,
+            })
             .collect(),
     };
     let curves = PoolCurves::build(&md, &MarketOptions::default(), "scenario")?;
-    let schedule = TrancheSchedule::new(sc.trade, sc.tranche_maturity, &curves.discount, &curves.hazard);
+    let schedule = TrancheSchedule::new(
+        sc.trade,
+        sc.tranche_maturity,
+        &curves.discount,
+        &curves.hazard,
+    );
     if header {
         println!("date,instrument,maturity,attach_pct,detach_pct,quote_kind,quote,coupon_bp,recovery_pct");
     }
     let rec = sc.recovery * 100.0;
     for &(m, q) in &sc.index {
         match q {
-            Quote::Spread(s) => println!("{},index,{m},,,spread_bp,{},,{rec}", sc.trade, round_to(s * 1e4, 3)),
+            Quote::Spread(s) => println!(
+                "{},index,{m},,,spread_bp,{},,{rec}",
+                sc.trade,
+                round_to(s * 1e4, 3)
+            ),
             Quote::Upfront { upfront, coupon } => println!(
                 "{},index,{m},,,upfront_pct,{},{},{rec}",
                 sc.trade,
@@ -141,13 +162,24 @@ fn print_scenario(sc: &Scenario, header: bool) -> Result<(), skewbook::Error> {
         }
     }
     for &(date, r) in &sc.zeros {
-        println!("{},zero,{date},,,zero_rate_pct,{},,", sc.trade, round_to(r * 100.0, 4));
+        println!(
+            "{},zero,{date},,,zero_rate_pct,{},,",
+            sc.trade,
+            round_to(r * 100.0, 4)
+        );
     }
     let mut rho_below = 0.0;
     for l in &sc.layers {
-        let rho_d = if l.detach >= 1.0 { rho_below } else { l.base_rho };
+        let rho_d = if l.detach >= 1.0 {
+            rho_below
+        } else {
+            l.base_rho
+        };
         let quote = match l.coupon {
-            Some(coupon) => Quote::Upfront { upfront: 0.0, coupon },
+            Some(coupon) => Quote::Upfront {
+                upfront: 0.0,
+                coupon,
+            },
             None => Quote::Spread(0.0),
         };
         let v = TrancheValuer {
@@ -158,7 +190,7 @@ fn print_scenario(sc: &Scenario, header: bool) -> Result<(), skewbook::Error> {
             quote,
         };
         let legs = v.legs(rho_below, rho_d);
-        let (a, dd) = (l.attach * 100.0, l.detach * 100.0);
+        let (a, dd) = (round_to(l.attach * 100.0, 6), round_to(l.detach * 100.0, 6));
         let m = sc.tranche_maturity;
         match l.coupon {
             Some(c) => println!(
@@ -169,7 +201,11 @@ fn print_scenario(sc: &Scenario, header: bool) -> Result<(), skewbook::Error> {
             ),
             None => {
                 let s = v.model_spread(&legs).unwrap_or(0.0);
-                println!("{},tranche,{m},{a},{dd},spread_bp,{},,", sc.trade, round_to(s * 1e4, 2))
+                println!(
+                    "{},tranche,{m},{a},{dd},spread_bp,{},,",
+                    sc.trade,
+                    round_to(s * 1e4, 2)
+                )
             }
         }
         rho_below = rho_d;

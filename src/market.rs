@@ -40,19 +40,22 @@ impl Quote {
         }
     }
 
-    /// The quote in its file unit: bp for spreads, percent for upfronts.
+    /// The quote in its file unit: bp for spreads, percent for upfronts,
+    /// rounded to 1e-10 of that unit so that 13.9527 read from a file (and
+    /// held as 0.139527) prints as 13.9527 again.
     pub fn in_file_unit(&self) -> f64 {
-        match *self {
+        let x = match *self {
             Quote::Spread(s) => s * 1e4,
             Quote::Upfront { upfront, .. } => upfront * 100.0,
-        }
+        };
+        (x * 1e10).round() / 1e10
     }
 
     /// The coupon in bp, `None` for a par-spread quote.
     pub fn coupon_bp(&self) -> Option<f64> {
         match *self {
             Quote::Spread(_) => None,
-            Quote::Upfront { coupon, .. } => Some(coupon * 1e4),
+            Quote::Upfront { coupon, .. } => Some((coupon * 1e4 * 1e10).round() / 1e10),
         }
     }
 }

@@ -2,9 +2,6 @@
 //! with status 2 (bad input, the documented exit code) and an
 //! `error: path:line:col:` message on stderr, never a panic; `-` reads
 //! standard input and names it `-` in messages.
-//!
-//! Ignored until `skewbook curve` is built (the skeleton's command is a
-//! stub); run with `cargo test -- --ignored cli_errors`.
 
 use super::snapshot::MALFORMED;
 use std::io::Write;
@@ -33,7 +30,6 @@ fn curve(path: &str, stdin: Option<&[u8]>) -> Output {
 }
 
 #[test]
-#[ignore = "needs `skewbook curve` reading the snapshot; drop once it is on main"]
 fn every_malformed_fixture_exits_2_with_a_located_message() {
     // `snapshot::every_malformed_fixture_fails_where_the_table_says` checks
     // that MALFORMED lists every file in the directory.
@@ -54,7 +50,6 @@ fn every_malformed_fixture_exits_2_with_a_located_message() {
 }
 
 #[test]
-#[ignore = "needs `skewbook curve` reading the snapshot; drop once it is on main"]
 fn all_problems_of_a_file_reach_stderr() {
     let path = format!("{DIR}/many_problems.csv");
     let out = curve(&path, None);
@@ -71,7 +66,6 @@ fn all_problems_of_a_file_reach_stderr() {
 }
 
 #[test]
-#[ignore = "needs `skewbook curve` reading the snapshot; drop once it is on main"]
 fn dash_reads_standard_input() {
     let bytes = std::fs::read(format!("{DIR}/bad_number.csv")).expect("fixture");
     let out = curve("-", Some(&bytes));
@@ -92,7 +86,6 @@ fn dash_reads_standard_input() {
 }
 
 #[test]
-#[ignore = "needs `skewbook curve` reading the snapshot; drop once it is on main"]
 fn a_missing_file_exits_2_naming_it() {
     let path = format!("{DIR}/no-such-file.csv");
     let out = curve(&path, None);

@@ -16,7 +16,12 @@ fn d(y: i32, m: u32, day: u32) -> NaiveDate {
 /// Legs by composite Simpson on a grid of 1/16 day: every knot of both
 /// curves sits on a whole day, so each Simpson panel sees smooth integrands.
 /// Independent of the closed forms: it uses only S(t), DF(t) and h(t).
-fn legs_by_quadrature(s: &Schedule, disc: &DiscountCurve, haz: &HazardCurve, recovery: f64) -> (f64, f64) {
+fn legs_by_quadrature(
+    s: &Schedule,
+    disc: &DiscountCurve,
+    haz: &HazardCurve,
+    recovery: f64,
+) -> (f64, f64) {
     let m = 16;
     let (mut prot, mut ann) = (0.0, 0.0);
     for p in &s.periods {
@@ -39,7 +44,13 @@ fn legs_by_quadrature(s: &Schedule, disc: &DiscountCurve, haz: &HazardCurve, rec
             };
             let (mut s0, mut s1) = (0.0, 0.0);
             for j in 0..=m {
-                let w = if j == 0 || j == m { 1.0 } else if j % 2 == 1 { 4.0 } else { 2.0 };
+                let w = if j == 0 || j == m {
+                    1.0
+                } else if j % 2 == 1 {
+                    4.0
+                } else {
+                    2.0
+                };
                 let (v0, v1) = g(j);
                 s0 += w * v0;
                 s1 += w * v1;
@@ -55,13 +66,28 @@ fn legs_by_quadrature(s: &Schedule, disc: &DiscountCurve, haz: &HazardCurve, rec
 
 fn sample_curves(trade: NaiveDate) -> (DiscountCurve, HazardCurve) {
     let zeros = [
-        ZeroPillar { date: d(2027, 6, 19), rate: 0.021, line: 2 },
-        ZeroPillar { date: d(2029, 6, 19), rate: 0.026, line: 3 },
-        ZeroPillar { date: d(2033, 6, 19), rate: 0.031, line: 4 },
+        ZeroPillar {
+            date: d(2027, 6, 19),
+            rate: 0.021,
+            line: 2,
+        },
+        ZeroPillar {
+            date: d(2029, 6, 19),
+            rate: 0.026,
+            line: 3,
+        },
+        ZeroPillar {
+            date: d(2033, 6, 19),
+            rate: 0.031,
+            line: 4,
+        },
     ];
     let disc = DiscountCurve::from_zero_pillars(trade, &zeros, "test").unwrap();
     let t = |y, m, dd| skewbook::dates::curve_time(trade, d(y, m, dd));
-    let haz = HazardCurve::from_knots(&[t(2029, 6, 21), t(2031, 6, 21), t(2033, 6, 21)], &[0.008, 0.013, 0.02]);
+    let haz = HazardCurve::from_knots(
+        &[t(2029, 6, 21), t(2031, 6, 21), t(2033, 6, 21)],
+        &[0.008, 0.013, 0.02],
+    );
     (disc, haz)
 }
 
@@ -69,13 +95,26 @@ fn sample_curves(trade: NaiveDate) -> (DiscountCurve, HazardCurve) {
 fn closed_form_legs_match_fine_grid_integration() {
     let trade = d(2026, 6, 18);
     let (disc, haz) = sample_curves(trade);
-    for maturity in [d(2029, 6, 20), d(2031, 6, 20), d(2033, 6, 20), d(2034, 3, 20)] {
+    for maturity in [
+        d(2029, 6, 20),
+        d(2031, 6, 20),
+        d(2033, 6, 20),
+        d(2034, 3, 20),
+    ] {
         let s = Schedule::new(trade, maturity);
         let legs = index_legs(&s, &disc, haz.rate(), 0.4);
         let (p, a) = legs_by_quadrature(&s, &disc, &haz, 0.4);
         // Simpson with 1/16-day panels: error far below 1e-12 on these smooth pieces.
-        assert!((legs.protection - p).abs() < 1e-12, "{maturity}: {} vs {p}", legs.protection);
-        assert!((legs.annuity - a).abs() < 1e-12, "{maturity}: {} vs {a}", legs.annuity);
+        assert!(
+            (legs.protection - p).abs() < 1e-12,
+            "{maturity}: {} vs {p}",
+            legs.protection
+        );
+        assert!(
+            (legs.annuity - a).abs() < 1e-12,
+            "{maturity}: {} vs {a}",
+            legs.annuity
+        );
     }
 }
 
@@ -89,10 +128,18 @@ fn credit_triangle() {
     let disc = DiscountCurve::flat(0.0);
     for &(h, r) in &[(0.01, 0.4), (0.03, 0.25), (0.002, 0.6)] {
         let s = Schedule::new(trade, d(2031, 6, 20));
-        let legs = index_legs(&s, &disc, &skewbook::curve::piecewise::PiecewiseConstant::flat(h), r);
+        let legs = index_legs(
+            &s,
+            &disc,
+            &skewbook::curve::piecewise::PiecewiseConstant::flat(h),
+            r,
+        );
         let spread = legs.protection / legs.annuity;
         let triangle = h * (1.0 - r) * 360.0 / 365.0;
-        assert!((spread / triangle - 1.0).abs() < 2e-3, "h {h}: {spread} vs {triangle}");
+        assert!(
+            (spread / triangle - 1.0).abs() < 2e-3,
+            "h {h}: {spread} vs {triangle}"
+        );
     }
 }
 
@@ -122,7 +169,11 @@ fn quotes_from_curve(
                     coupon: c,
                 },
             };
-            IndexQuote { maturity: m, quote, line: i as u64 + 2 }
+            IndexQuote {
+                maturity: m,
+                quote,
+                line: i as u64 + 2,
+            }
         })
         .collect()
 }
@@ -159,21 +210,35 @@ fn upfront_above_what_recovery_allows_is_unfittable() {
     let trade = d(2026, 6, 18);
     let q = [IndexQuote {
         maturity: d(2031, 6, 20),
-        quote: Quote::Upfront { upfront: 0.65, coupon: 0.05 },
+        quote: Quote::Upfront {
+            upfront: 0.65,
+            coupon: 0.05,
+        },
         line: 7,
     }];
     let err = bootstrap(trade, &q, &DiscountCurve::flat(0.0), 0.4, "hy.csv").unwrap_err();
     assert_eq!(err.kind, skewbook::ErrorKind::Unfittable);
     let msg = err.to_string();
-    assert!(msg.contains("hy.csv:7") && msg.contains("2026-06-18") && msg.contains("2031-06-20"), "{msg}");
+    assert!(
+        msg.contains("hy.csv:7") && msg.contains("2026-06-18") && msg.contains("2031-06-20"),
+        "{msg}"
+    );
 }
 
 #[test]
 fn spread_below_earlier_pillars_is_unfittable() {
     let trade = d(2026, 6, 18);
     let q = [
-        IndexQuote { maturity: d(2029, 6, 20), quote: Quote::Spread(0.0200), line: 2 },
-        IndexQuote { maturity: d(2031, 6, 20), quote: Quote::Spread(0.0050), line: 3 },
+        IndexQuote {
+            maturity: d(2029, 6, 20),
+            quote: Quote::Spread(0.0200),
+            line: 2,
+        },
+        IndexQuote {
+            maturity: d(2031, 6, 20),
+            quote: Quote::Spread(0.0050),
+            line: 3,
+        },
     ];
     let err = bootstrap(trade, &q, &DiscountCurve::flat(0.0), 0.4, "ig.csv").unwrap_err();
     assert_eq!(err.kind, skewbook::ErrorKind::Unfittable);

@@ -6,6 +6,8 @@ mod cli_errors;
 mod curve;
 /// The command line against the independent Python implementation's fixtures.
 mod independent;
+/// Every bundled sample through every command and format.
+mod samples;
 /// Snapshot reader: valid files, every validation rule, malformed fixtures, fuzzing.
 mod snapshot;
 /// Tranche legs, compound and base correlation.

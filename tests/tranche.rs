@@ -16,10 +16,21 @@ const TRADE: (i32, u32, u32) = (2026, 6, 18);
 
 fn schedule(hazard: f64, rate: f64, maturity: NaiveDate) -> TrancheSchedule {
     let trade = d(TRADE.0, TRADE.1, TRADE.2);
-    TrancheSchedule::new(trade, maturity, &DiscountCurve::flat(rate), &HazardCurve::flat(hazard))
+    TrancheSchedule::new(
+        trade,
+        maturity,
+        &DiscountCurve::flat(rate),
+        &HazardCurve::flat(hazard),
+    )
 }
 
-fn valuer(s: &TrancheSchedule, recovery: f64, attach: f64, detach: f64, quote: Quote) -> TrancheValuer<'_> {
+fn valuer(
+    s: &TrancheSchedule,
+    recovery: f64,
+    attach: f64,
+    detach: f64,
+    quote: Quote,
+) -> TrancheValuer<'_> {
     TrancheValuer {
         schedule: s,
         recovery,
@@ -45,7 +56,10 @@ fn capital_structure_losses_add_up_to_the_pool_loss() {
                     v.legs_flat(rho).expected_loss * (w[1] - w[0])
                 })
                 .sum();
-            assert!((total - pool).abs() < 1e-13, "{maturity} rho {rho}: {total} vs {pool}");
+            assert!(
+                (total - pool).abs() < 1e-13,
+                "{maturity} rho {rho}: {total} vs {pool}"
+            );
         }
     }
 }
@@ -80,7 +94,10 @@ fn equity_compound_equals_base() {
     };
     let out = implied_for_maturity(&s, 0.4, &[&q]);
     assert_eq!(out[0].compound_correlation.len(), 1);
-    let (c, b) = (out[0].compound_correlation[0], out[0].base_correlation.unwrap());
+    let (c, b) = (
+        out[0].compound_correlation[0],
+        out[0].base_correlation.unwrap(),
+    );
     assert!((c - b).abs() < 1e-10, "{c} vs {b}");
 }
 
@@ -90,21 +107,38 @@ fn equity_compound_equals_base() {
 fn base_correlation_round_trip() {
     let m = d(2031, 6, 20);
     let s = schedule(0.011, 0.028, m);
-    let layers = [(0.0, 0.03, 0.12, Some(0.05)), (0.03, 0.07, 0.23, None), (0.07, 0.15, 0.36, None), (0.15, 0.3, 0.52, Some(0.01))];
+    let layers = [
+        (0.0, 0.03, 0.12, Some(0.05)),
+        (0.03, 0.07, 0.23, None),
+        (0.07, 0.15, 0.36, None),
+        (0.15, 0.3, 0.52, Some(0.01)),
+    ];
     let mut quotes = Vec::new();
     let mut below = 0.0;
     for &(a, dd, rho, coupon) in &layers {
         let probe = match coupon {
-            Some(c) => Quote::Upfront { upfront: 0.0, coupon: c },
+            Some(c) => Quote::Upfront {
+                upfront: 0.0,
+                coupon: c,
+            },
             None => Quote::Spread(0.0),
         };
         let v = valuer(&s, 0.4, a, dd, probe);
         let legs = v.legs(below, rho);
         let quote = match coupon {
-            Some(c) => Quote::Upfront { upfront: v.model_upfront(&legs), coupon: c },
+            Some(c) => Quote::Upfront {
+                upfront: v.model_upfront(&legs),
+                coupon: c,
+            },
             None => Quote::Spread(v.model_spread(&legs).unwrap()),
         };
-        quotes.push(TrancheQuote { maturity: m, attach: a, detach: dd, quote, line: 2 });
+        quotes.push(TrancheQuote {
+            maturity: m,
+            attach: a,
+            detach: dd,
+            quote,
+            line: 2,
+        });
         below = rho;
     }
     let refs: Vec<&TrancheQuote> = quotes.iter().collect();
@@ -143,7 +177,11 @@ fn mezzanine_above_the_peak_has_no_root() {
     let s = schedule(0.01, 0.0, m);
     let probe = valuer(&s, 0.4, 0.03, 0.07, Quote::Spread(0.0));
     let peak = (1..200)
-        .map(|i| probe.model_spread(&probe.legs_flat(i as f64 / 200.0)).unwrap())
+        .map(|i| {
+            probe
+                .model_spread(&probe.legs_flat(i as f64 / 200.0))
+                .unwrap()
+        })
         .fold(0.0, f64::max);
     let v = valuer(&s, 0.4, 0.03, 0.07, Quote::Spread(peak * 1.05));
     let sol = compound_roots(&v);

@@ -101,7 +101,11 @@ mod tests {
     #[test]
     fn reproduces_pillars_and_interpolates_rt_linearly() {
         let trade = d(2026, 1, 1);
-        let p = |date, rate| ZeroPillar { date, rate, line: 2 };
+        let p = |date, rate| ZeroPillar {
+            date,
+            rate,
+            line: 2,
+        };
         let pillars = [p(d(2027, 1, 1), 0.02), p(d(2031, 1, 1), 0.03)];
         let c = DiscountCurve::from_zero_pillars(trade, &pillars, "x").unwrap();
         let t1 = curve_time(trade, d(2027, 1, 1));

@@ -96,7 +96,9 @@ pub struct Pillar {
 pub fn model_quote(legs: IndexLegs, quote: Quote, df_settlement: f64) -> f64 {
     match quote {
         Quote::Spread(_) => legs.protection / legs.annuity * 1e4,
-        Quote::Upfront { coupon, .. } => (legs.protection - coupon * legs.annuity) / df_settlement * 100.0,
+        Quote::Upfront { coupon, .. } => {
+            (legs.protection - coupon * legs.annuity) / df_settlement * 100.0
+        }
     }
 }
 

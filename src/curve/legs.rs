@@ -51,7 +51,10 @@ fn exp_moments_series(lambda: f64, dt: f64) -> (f64, f64) {
 
 fn exp_moments_closed(lambda: f64, dt: f64) -> (f64, f64) {
     let x = lambda * dt;
-    (-(-x).exp_m1() / lambda, (1.0 - (-x).exp() * (1.0 + x)) / (lambda * lambda))
+    (
+        -(-x).exp_m1() / lambda,
+        (1.0 - (-x).exp() * (1.0 + x)) / (lambda * lambda),
+    )
 }
 
 /// Sorted breakpoints of both curves strictly inside (a, b).
@@ -155,7 +158,14 @@ mod tests {
 
     #[test]
     fn series_and_closed_form_meet() {
-        for &(l, dt) in &[(0.05, 0.25), (1e-3, 0.09), (-0.02, 0.3), (2.0, 0.25), (0.0, 0.25), (5.0, 0.3)] {
+        for &(l, dt) in &[
+            (0.05, 0.25),
+            (1e-3, 0.09),
+            (-0.02, 0.3),
+            (2.0, 0.25),
+            (0.0, 0.25),
+            (5.0, 0.3),
+        ] {
             let (e1, e2) = exp_moments(l, dt);
             // Midpoint rule on a fine grid as the outside check.
             let n = 20000;
@@ -172,7 +182,10 @@ mod tests {
         for &x in &[0.3, 0.5, 0.7, -0.5] {
             let (s1, s2) = exp_moments_series(x / 0.25, 0.25);
             let (c1, c2) = exp_moments_closed(x / 0.25, 0.25);
-            assert!((s1 / c1 - 1.0).abs() < 1e-15 && (s2 / c2 - 1.0).abs() < 1e-14, "{x}");
+            assert!(
+                (s1 / c1 - 1.0).abs() < 1e-15 && (s2 / c2 - 1.0).abs() < 1e-14,
+                "{x}"
+            );
         }
     }
 }

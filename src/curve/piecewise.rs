@@ -25,7 +25,11 @@ impl PiecewiseConstant {
     /// A rate from strictly increasing positive breakpoints and one more value
     /// than breakpoints.
     pub fn new(times: Vec<f64>, values: Vec<f64>) -> Self {
-        assert_eq!(values.len(), times.len() + 1, "one more value than breakpoints");
+        assert_eq!(
+            values.len(),
+            times.len() + 1,
+            "one more value than breakpoints"
+        );
         let mut integral_at = Vec::with_capacity(times.len());
         let (mut acc, mut prev) = (0.0, 0.0);
         for (i, &t) in times.iter().enumerate() {

@@ -37,14 +37,20 @@ impl MarketOptions {
             if !(0.0..1.0).contains(&r) {
                 return Err(Error::msg(
                     ErrorKind::Usage,
-                    format!("--recovery: expected a percentage in [0, 100), found {}", r * 100.0),
+                    format!(
+                        "--recovery: expected a percentage in [0, 100), found {}",
+                        r * 100.0
+                    ),
                 ));
             }
         }
         if !self.flat_rate.is_finite() || self.flat_rate.abs() >= 1.0 {
             return Err(Error::msg(
                 ErrorKind::Usage,
-                format!("--rate: expected a percentage in (-100, 100), found {}", self.flat_rate * 100.0),
+                format!(
+                    "--rate: expected a percentage in (-100, 100), found {}",
+                    self.flat_rate * 100.0
+                ),
             ));
         }
         Ok(())

@@ -66,7 +66,11 @@ fn emin(h: &Horizon, k: f64, rho: f64) -> f64 {
 fn base_at(h: &Horizon, r: f64, k: f64, rho: f64) -> (f64, f64) {
     let loss = (1.0 - r) * emin(h, k / (1.0 - r), rho);
     let rec_all = r * h.pd;
-    let rec_k = if r > 0.0 { r * emin(h, (1.0 - k) / r, rho) } else { 0.0 };
+    let rec_k = if r > 0.0 {
+        r * emin(h, (1.0 - k) / r, rho)
+    } else {
+        0.0
+    };
     (loss, k - loss - (rec_all - rec_k))
 }
 

@@ -176,9 +176,20 @@ pub fn fixed_or(x: Option<f64>, decimals: usize, missing: &str) -> String {
     x.map_or_else(|| missing.to_string(), |v| fixed(v, decimals))
 }
 
-/// A number for CSV: shortest round-trip representation, empty when missing.
+/// A number for CSV: shortest round-trip representation (exponent form
+/// below 1e-4 in magnitude, so tiny errors stay short), empty when missing.
 pub fn csv_num(x: Option<f64>) -> String {
-    x.map_or_else(String::new, |v| format!("{v}"))
+    match x {
+        None => String::new(),
+        Some(v) if v != 0.0 && v.abs() < 1e-4 => format!("{v:e}"),
+        Some(v) => format!("{v}"),
+    }
+}
+
+/// A fraction as a percentage for display, rounded to 1e-9 percent so a
+/// bound read as 7 and stored as 0.07 prints as 7 again.
+pub fn pct(x: f64) -> f64 {
+    (x * 100.0 * 1e9).round() / 1e9
 }
 
 /// A number in scientific notation with `digits` significant digits after the point.

@@ -23,7 +23,7 @@ use super::curves_for_all_dates;
 use crate::curve::{MarketOptions, Pillar};
 use crate::error::Result;
 use crate::market::Snapshot;
-use crate::output::{csv_num, fixed, sci, Report, Table};
+use crate::output::{csv_num, fixed, pct, sci, Report, Table};
 use serde::Serialize;
 
 /// One pillar of the curve report.
@@ -118,8 +118,20 @@ impl Report for CurveReport {
         self.dates
             .iter()
             .map(|d| {
-                let mut t = Table::new(&["maturity", "quote", "hazard%", "surv", "default%", "annuity", "reprice err"])
-                    .with_title(format!("{}  recovery {}%", d.date, fixed(d.recovery * 100.0, 1)));
+                let mut t = Table::new(&[
+                    "maturity",
+                    "quote",
+                    "hazard%",
+                    "surv",
+                    "default%",
+                    "annuity",
+                    "reprice err",
+                ])
+                .with_title(format!(
+                    "{}  recovery {}%",
+                    d.date,
+                    fixed(d.recovery * 100.0, 1)
+                ));
                 for p in &d.index {
                     t.push(vec![
                         p.maturity.clone(),
@@ -155,7 +167,7 @@ impl Report for CurveReport {
             for p in &d.index {
                 t.push(vec![
                     d.date.clone(),
-                    csv_num(Some(d.recovery * 100.0)),
+                    csv_num(Some(pct(d.recovery))),
                     p.maturity.clone(),
                     p.quote_kind.to_string(),
                     csv_num(Some(p.quote)),

@@ -43,7 +43,7 @@ use super::price::bounds_label;
 use crate::curve::MarketOptions;
 use crate::error::Result;
 use crate::market::{tiles_from_zero, Snapshot, TrancheQuote};
-use crate::output::{csv_num, fixed, fixed_or, sci, Report, Table};
+use crate::output::{csv_num, fixed, fixed_or, pct, sci, Report, Table};
 use crate::solve::base::{base_correlation, BaseSolve, Side};
 use crate::solve::compound::{compound_roots, RHO_MAX, RHO_MIN};
 use crate::tranche::{TrancheSchedule, TrancheValuer};
@@ -83,7 +83,8 @@ pub struct ImpliedTranche {
 impl ImpliedTranche {
     /// Whether this quote has a solution missing (drives exit status 1).
     pub fn unsolved(&self) -> bool {
-        self.compound_correlation.is_empty() || (self.base_correlation.is_none() && !self.flags.contains(&"top_tranche"))
+        self.compound_correlation.is_empty()
+            || (self.base_correlation.is_none() && !self.flags.contains(&"top_tranche"))
     }
 }
 
@@ -111,7 +112,10 @@ pub struct ImpliedReport {
 impl ImpliedReport {
     /// Whether any quote has no solution.
     pub fn any_unsolved(&self) -> bool {
-        self.dates.iter().flat_map(|d| &d.tranches).any(ImpliedTranche::unsolved)
+        self.dates
+            .iter()
+            .flat_map(|d| &d.tranches)
+            .any(ImpliedTranche::unsolved)
     }
 }
 
@@ -120,7 +124,11 @@ fn is_top(t: &TrancheQuote) -> bool {
 }
 
 /// Implied correlations for the tranches of one maturity (sorted by attachment).
-pub fn implied_for_maturity(schedule: &TrancheSchedule, recovery: f64, tranches: &[&TrancheQuote]) -> Vec<ImpliedTranche> {
+pub fn implied_for_maturity(
+    schedule: &TrancheSchedule,
+    recovery: f64,
+    tranches: &[&TrancheQuote],
+) -> Vec<ImpliedTranche> {
     let tiles = tiles_from_zero(tranches);
     // Base correlation at the previous detachment; None once the chain breaks.
     let mut chain: Option<f64> = Some(0.0);
@@ -144,7 +152,7 @@ pub fn implied_for_maturity(schedule: &TrancheSchedule, recovery: f64, tranches:
         if comp.tangent {
             flags.push("compound_tangent");
         }
-        let label = bounds_label(t.attach * 100.0, t.detach * 100.0);
+        let label = bounds_label(pct(t.attach), pct(t.detach));
         let (mut base, mut note, mut reprice, mut el) = (None, None, None, None);
         let reprice_at = |rho_a: f64, rho_d: f64| {
             let legs = v.legs(rho_a, rho_d);
@@ -153,7 +161,10 @@ pub fn implied_for_maturity(schedule: &TrancheSchedule, recovery: f64, tranches:
         };
         if !tiles {
             flags.push("bounds_do_not_tile");
-            note = Some("the tranches of this maturity do not tile the capital structure from 0%".to_string());
+            note = Some(
+                "the tranches of this maturity do not tile the capital structure from 0%"
+                    .to_string(),
+            );
         } else if let Some(rho_a) = chain {
             if is_top(t) {
                 flags.push("top_tranche");
@@ -195,8 +206,8 @@ pub fn implied_for_maturity(schedule: &TrancheSchedule, recovery: f64, tranches:
         }
         out.push(ImpliedTranche {
             maturity: t.maturity.to_string(),
-            attach_pct: t.attach * 100.0,
-            detach_pct: t.detach * 100.0,
+            attach_pct: pct(t.attach),
+            detach_pct: pct(t.detach),
             quote_kind: t.quote.kind_name(),
             quote: t.quote.in_file_unit(),
             coupon_bp: t.quote.coupon_bp(),
@@ -224,7 +235,10 @@ pub fn build(snapshot: &Snapshot, opts: &MarketOptions) -> Result<ImpliedReport>
         let mut i = 0;
         while i < md.tranches.len() {
             let m = md.tranches[i].maturity;
-            let group: Vec<&TrancheQuote> = md.tranches[i..].iter().take_while(|t| t.maturity == m).collect();
+            let group: Vec<&TrancheQuote> = md.tranches[i..]
+                .iter()
+                .take_while(|t| t.maturity == m)
+                .collect();
             i += group.len();
             let schedule = TrancheSchedule::new(md.date, m, &c.discount, &c.hazard);
             tranches.extend(implied_for_maturity(&schedule, c.recovery, &group));
@@ -243,7 +257,10 @@ fn pct_list(xs: &[f64]) -> String {
     if xs.is_empty() {
         "none".to_string()
     } else {
-        xs.iter().map(|x| fixed(x * 100.0, 2)).collect::<Vec<_>>().join(" ")
+        xs.iter()
+            .map(|x| fixed(x * 100.0, 2))
+            .collect::<Vec<_>>()
+            .join(" ")
     }
 }
 
@@ -262,10 +279,21 @@ impl Report for ImpliedReport {
             let mut i = 0;
             while i < d.tranches.len() {
                 let m = d.tranches[i].maturity.clone();
-                let group: Vec<&ImpliedTranche> = d.tranches[i..].iter().take_while(|t| t.maturity == m).collect();
+                let group: Vec<&ImpliedTranche> = d.tranches[i..]
+                    .iter()
+                    .take_while(|t| t.maturity == m)
+                    .collect();
                 i += group.len();
-                let mut t = Table::new(&["tranche", "quote", "compound%", "base%", "EL%", "reprice", "flags"])
-                    .with_title(format!("{}  tranches maturing {m}", d.date));
+                let mut t = Table::new(&[
+                    "tranche",
+                    "quote",
+                    "compound%",
+                    "base%",
+                    "EL%",
+                    "reprice",
+                    "flags",
+                ])
+                .with_title(format!("{}  tranches maturing {m}", d.date));
                 for r in group {
                     t.push(vec![
                         bounds_label(r.attach_pct, r.detach_pct),
@@ -285,7 +313,10 @@ impl Report for ImpliedReport {
                         ));
                     }
                     if let (Some(n), false) = (&r.base_note, r.flags.contains(&"top_tranche")) {
-                        t.notes.push(format!("  {}: {n}", bounds_label(r.attach_pct, r.detach_pct)));
+                        t.notes.push(format!(
+                            "  {}: {n}",
+                            bounds_label(r.attach_pct, r.detach_pct)
+                        ));
                     }
                 }
                 out.push(t);
@@ -318,7 +349,7 @@ impl Report for ImpliedReport {
             for r in &d.tranches {
                 t.push(vec![
                     d.date.clone(),
-                    csv_num(Some(d.recovery * 100.0)),
+                    csv_num(Some(pct(d.recovery))),
                     r.maturity.clone(),
                     csv_num(Some(r.attach_pct)),
                     csv_num(Some(r.detach_pct)),

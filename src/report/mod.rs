@@ -18,7 +18,10 @@ use crate::market::{MarketDate, Snapshot};
 ///
 /// # Errors
 /// The first error's kind, with the problems of every failing date.
-pub fn curves_for_all_dates(snapshot: &Snapshot, opts: &MarketOptions) -> Result<Vec<(MarketDate, PoolCurves)>> {
+pub fn curves_for_all_dates(
+    snapshot: &Snapshot,
+    opts: &MarketOptions,
+) -> Result<Vec<(MarketDate, PoolCurves)>> {
     let mut out = Vec::with_capacity(snapshot.dates.len());
     let mut failure: Option<Error> = None;
     for md in &snapshot.dates {

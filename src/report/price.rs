@@ -21,7 +21,7 @@ use super::curves_for_all_dates;
 use crate::curve::MarketOptions;
 use crate::error::{Error, ErrorKind, Result};
 use crate::market::{Snapshot, TrancheQuote};
-use crate::output::{csv_num, fixed, fixed_or, Report, Table};
+use crate::output::{csv_num, fixed, fixed_or, pct, Report, Table};
 use crate::tranche::{TrancheSchedule, TrancheValuer};
 use serde::Serialize;
 
@@ -76,7 +76,12 @@ pub struct PriceReport {
 }
 
 /// Prices one tranche at a flat correlation on its schedule.
-pub fn price_tranche(schedule: &TrancheSchedule, recovery: f64, t: &TrancheQuote, rho: f64) -> PricedTranche {
+pub fn price_tranche(
+    schedule: &TrancheSchedule,
+    recovery: f64,
+    t: &TrancheQuote,
+    rho: f64,
+) -> PricedTranche {
     let v = TrancheValuer {
         schedule,
         recovery,
@@ -87,8 +92,8 @@ pub fn price_tranche(schedule: &TrancheSchedule, recovery: f64, t: &TrancheQuote
     let legs = v.legs_flat(rho);
     PricedTranche {
         maturity: t.maturity.to_string(),
-        attach_pct: t.attach * 100.0,
-        detach_pct: t.detach * 100.0,
+        attach_pct: pct(t.attach),
+        detach_pct: pct(t.detach),
         quote_kind: t.quote.kind_name(),
         quote: t.quote.in_file_unit(),
         coupon_bp: t.quote.coupon_bp(),
@@ -118,7 +123,12 @@ pub fn build(snapshot: &Snapshot, opts: &MarketOptions, rho: f64) -> Result<Pric
         let mut schedule: Option<TrancheSchedule> = None;
         for t in &md.tranches {
             if schedule.as_ref().is_none_or(|s| s.maturity() != t.maturity) {
-                schedule = Some(TrancheSchedule::new(md.date, t.maturity, &c.discount, &c.hazard));
+                schedule = Some(TrancheSchedule::new(
+                    md.date,
+                    t.maturity,
+                    &c.discount,
+                    &c.hazard,
+                ));
             }
             let s = schedule.as_ref().expect("just set");
             tranches.push(price_tranche(s, c.recovery, t, rho));
@@ -147,13 +157,21 @@ impl Report for PriceReport {
         self.dates
             .iter()
             .map(|d| {
-                let mut t = Table::new(&["maturity", "tranche", "quote", "upfront%", "spread bp", "EL%", "value"])
-                    .with_title(format!(
-                        "{}  recovery {}%  correlation {}%",
-                        d.date,
-                        fixed(d.recovery * 100.0, 1),
-                        fixed(d.correlation * 100.0, 2)
-                    ));
+                let mut t = Table::new(&[
+                    "maturity",
+                    "tranche",
+                    "quote",
+                    "upfront%",
+                    "spread bp",
+                    "EL%",
+                    "value",
+                ])
+                .with_title(format!(
+                    "{}  recovery {}%  correlation {}%",
+                    d.date,
+                    fixed(d.recovery * 100.0, 1),
+                    fixed(d.correlation * 100.0, 2)
+                ));
                 for p in &d.tranches {
                     t.push(vec![
                         p.maturity.clone(),
@@ -192,7 +210,7 @@ impl Report for PriceReport {
             for p in &d.tranches {
                 t.push(vec![
                     d.date.clone(),
-                    csv_num(Some(d.recovery * 100.0)),
+                    csv_num(Some(pct(d.recovery))),
                     csv_num(Some(d.correlation)),
                     p.maturity.clone(),
                     csv_num(Some(p.attach_pct)),

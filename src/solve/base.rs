@@ -66,7 +66,11 @@ pub fn base_correlation(v: &TrancheValuer, rho_attach: f64) -> BaseSolve {
     let q_lo = v.model_quote(&lo).unwrap_or(f64::INFINITY);
     let q_hi = v.model_quote(&hi).unwrap_or(f64::INFINITY);
     let quote = v.quote.in_file_unit();
-    let side = if quote > q_lo.max(q_hi) { Side::Above } else { Side::Below };
+    let side = if quote > q_lo.max(q_hi) {
+        Side::Above
+    } else {
+        Side::Below
+    };
     BaseSolve::NoSolution {
         side,
         range: (q_lo, q_hi),

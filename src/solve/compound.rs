@@ -101,7 +101,9 @@ pub fn compound_roots(v: &TrancheValuer) -> CompoundSolve {
         let legs = v.legs_flat(rho);
         (v.value(&legs), v.d_value(&legs))
     };
-    let polish = |a: &Sample, b: &Sample| newton_bracketed(fdf, a.rho, b.rho, a.value, b.value, CORRELATION_TOLERANCE).ok();
+    let polish = |a: &Sample, b: &Sample| {
+        newton_bracketed(fdf, a.rho, b.rho, a.value, b.value, CORRELATION_TOLERANCE).ok()
+    };
     let mut roots: Vec<Solution> = Vec::new();
     let mut tangent = false;
     if samples[0].value == 0.0 {

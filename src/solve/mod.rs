@@ -5,6 +5,6 @@
 //! - [`compound`]: every root of a tranche's value in correlation;
 //! - [`base`]: the base-correlation bootstrap per maturity.
 
-pub mod root;
 pub mod base;
 pub mod compound;
+pub mod root;

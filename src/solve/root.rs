@@ -63,7 +63,12 @@ pub enum Failure {
 /// # Errors
 /// [`Failure::NotBracketed`] when f(a) and f(b) have the same sign;
 /// [`Failure::NoConvergence`] when the iteration budget runs out.
-pub fn brent<F: FnMut(f64) -> f64>(mut f: F, a: f64, b: f64, tol: Tolerance) -> Result<Solution, Failure> {
+pub fn brent<F: FnMut(f64) -> f64>(
+    mut f: F,
+    a: f64,
+    b: f64,
+    tol: Tolerance,
+) -> Result<Solution, Failure> {
     let mut evaluations = 0;
     let mut counted = |x: f64| {
         evaluations += 1;
@@ -178,7 +183,10 @@ mod tests {
 
     #[test]
     fn unbracketed_is_an_error() {
-        assert_eq!(brent(|x| x * x + 1.0, 0.0, 2.0, TOL), Err(Failure::NotBracketed));
+        assert_eq!(
+            brent(|x| x * x + 1.0, 0.0, 2.0, TOL),
+            Err(Failure::NotBracketed)
+        );
         assert_eq!(
             newton_bracketed(|x| (x * x + 1.0, 2.0 * x), 0.0, 2.0, 1.0, 5.0, TOL),
             Err(Failure::NotBracketed)
@@ -189,7 +197,10 @@ mod tests {
 impl std::fmt::Display for Failure {
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
         match self {
-            Failure::NotBracketed => write!(f, "the function has the same sign at both ends of the bracket"),
+            Failure::NotBracketed => write!(
+                f,
+                "the function has the same sign at both ends of the bracket"
+            ),
             Failure::NoConvergence => write!(f, "no convergence within the iteration budget"),
         }
     }

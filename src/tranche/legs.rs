@@ -50,10 +50,17 @@ pub struct BaseLegs {
 
 impl TrancheSchedule {
     /// Precomputes the schedule of a tranche traded on `trade` maturing on `maturity`.
-    pub fn new(trade: NaiveDate, maturity: NaiveDate, discount: &DiscountCurve, hazard: &HazardCurve) -> Self {
+    pub fn new(
+        trade: NaiveDate,
+        maturity: NaiveDate,
+        discount: &DiscountCurve,
+        hazard: &HazardCurve,
+    ) -> Self {
         let s = Schedule::new(trade, maturity);
         let mut horizons = Vec::with_capacity(s.periods.len() + 1);
-        horizons.push(Horizon::new(hazard.default_probability(s.periods[0].t_start)));
+        horizons.push(Horizon::new(
+            hazard.default_probability(s.periods[0].t_start),
+        ));
         let mut df_pay = Vec::with_capacity(s.periods.len());
         let mut half_accrual_df = Vec::with_capacity(s.periods.len());
         for p in &s.periods {

@@ -69,8 +69,12 @@ impl TrancheValuer<'_> {
     /// at `rho_detach`. Derivatives are in `rho_detach` only.
     pub fn legs(&self, rho_attach: f64, rho_detach: f64) -> TrancheLegs {
         let w = self.detach - self.attach;
-        let d = self.schedule.base_legs(self.recovery, self.detach, rho_detach);
-        let a = self.schedule.base_legs(self.recovery, self.attach, rho_attach);
+        let d = self
+            .schedule
+            .base_legs(self.recovery, self.detach, rho_detach);
+        let a = self
+            .schedule
+            .base_legs(self.recovery, self.attach, rho_attach);
         TrancheLegs {
             protection: (d.protection - a.protection) / w,
             annuity: (d.annuity - a.annuity) / w,
@@ -96,7 +100,9 @@ impl TrancheValuer<'_> {
 
     /// Value to the protection buyer at the quote, per unit tranche notional.
     pub fn value(&self, legs: &TrancheLegs) -> f64 {
-        legs.protection - self.running() * legs.annuity - self.upfront() * self.schedule.df_settlement()
+        legs.protection
+            - self.running() * legs.annuity
+            - self.upfront() * self.schedule.df_settlement()
     }
 
     /// d value / d rho from the legs' derivatives.
