@@ -6,6 +6,8 @@ mod bvn;
 mod cli_errors;
 /// Index legs and the hazard bootstrap.
 mod curve;
+/// The command line against the independent Python implementation's fixtures.
+mod independent;
 /// Every bundled sample through every command and format.
 mod samples;
 /// Real-world calibration: estimators against an independent Python
