@@ -8,13 +8,13 @@ mod cli_errors;
 mod curve;
 /// The command line against the independent Python implementation's fixtures.
 mod independent;
-/// Every bundled sample through every command and format.
-mod samples;
 /// Real-world calibration: estimators against an independent Python
 /// implementation, coverage by simulation, the `loss` and `realworld` commands.
 mod realworld;
 /// Coverage of the estimators' 95 % intervals on simulated histories.
 mod realworld_coverage;
+/// Every bundled sample through every command and format.
+mod samples;
 /// Snapshot reader: valid files, every validation rule, malformed fixtures, fuzzing.
 mod snapshot;
 /// Tranche legs, compound and base correlation.
