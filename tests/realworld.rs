@@ -249,3 +249,60 @@ fn loss_command_matches_published_figures() {
     assert_eq!(code, 2);
     assert!(err.contains("found 1.5"), "{err}");
 }
+
+/// `--against`: the risk-neutral one-year PD equals 1 - exp(-h1) with h1
+/// the first hazard segment that `curve` prints (its first knot is past one
+/// year), the implied correlations are `implied`'s, and each ratio is the
+/// quotient of the two sides.
+#[test]
+fn against_a_snapshot_sets_the_market_beside_the_estimates() {
+    let snap = "market-samples/hgx-2026-06-18.csv";
+    let (code, out, err) = skewbook(&[
+        "realworld",
+        "market-samples/hgx-default-rates.csv",
+        "--against",
+        snap,
+        "--format",
+        "json",
+    ]);
+    assert_eq!(code, 0, "{err}");
+    let v: Value = serde_json::from_str(&out).unwrap();
+    let rn = &v["risk_neutral"];
+    let (_, curve, _) = skewbook(&["curve", snap, "--format", "json"]);
+    let curve: Value = serde_json::from_str(&curve).unwrap();
+    let h1 = curve[0]["index"][0]["hazard"].as_f64().unwrap();
+    let pd1 = rn["pd_one_year"].as_f64().unwrap();
+    assert!((pd1 - (1.0 - (-h1).exp())).abs() < 1e-15, "{pd1}");
+    let (_, implied, _) = skewbook(&["implied", snap, "--format", "json"]);
+    let implied: Value = serde_json::from_str(&implied).unwrap();
+    let tranches = implied[0]["tranches"].as_array().unwrap();
+    for (i, t) in tranches.iter().enumerate() {
+        assert_eq!(rn["tranches"][i]["base_correlation"], t["base_correlation"]);
+    }
+    for r in rn["ratios"].as_array().unwrap() {
+        let m = v["methods"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .find(|m| m["method"] == r["method"])
+            .unwrap();
+        let pd = m["pd"].as_f64().unwrap();
+        let rho = m["rho"].as_f64().unwrap();
+        assert!((r["pd_ratio"].as_f64().unwrap() - pd1 / pd).abs() < 1e-12);
+        let b0 = tranches[0]["base_correlation"].as_f64().unwrap();
+        assert!((r["base_correlation_ratio"][0].as_f64().unwrap() - b0 / rho).abs() < 1e-12);
+    }
+    assert!(rn["reading"].as_str().unwrap().contains("risk"));
+    for format in ["table", "csv"] {
+        let (code, out, _) = skewbook(&[
+            "realworld",
+            "market-samples/lhy-default-counts.csv",
+            "--against",
+            "market-samples/lhy-2026-06-18.csv",
+            "--format",
+            format,
+        ]);
+        assert_eq!(code, 0);
+        assert!(no_nan(&out) && out.contains("1.") && out.to_lowercase().contains("ratio"));
+    }
+}

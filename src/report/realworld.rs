@@ -15,7 +15,19 @@
 //!   `periods`; `zero_default_periods` (a count); `notes` (strings);
 //!   `loss` (one object per level: `level`, `loss_quantile`,
 //!   `expected_shortfall`, loss fractions; empty when pd or rho is null);
-//! - `notes`: strings about the whole run.
+//! - `notes`: strings about the whole run;
+//! - `risk_neutral`: null without `--against`; otherwise the snapshot's last
+//!   trade date seen from the market: `snapshot`, `date`, `recovery`
+//!   (fraction), `pd_one_year` (default probability to one year, 365 days,
+//!   off the bootstrapped index curve), `index` (per pillar: `maturity`,
+//!   `default_probability` to its protection end), `tranches` (per tranche:
+//!   `maturity`, `attach_pct`, `detach_pct`, `compound_correlation` (every
+//!   root), `base_correlation` (null where none)), `ratios` (per estimator
+//!   with a PD and rho: `method`, `pd_ratio` = pd_one_year / pd,
+//!   `base_correlation_ratio` and `compound_correlation_ratio`, one entry per
+//!   tranche in the order of `tranches`, each risk-neutral / real-world rho,
+//!   null where the correlation or rho is missing or rho is 0), and
+//!   `reading`, a one-line interpretation.
 
 use crate::error::Result;
 use crate::input::history::{History, HistoryKind};
@@ -66,6 +78,167 @@ pub struct RealworldReport {
     pub methods: Vec<MethodRow>,
     /// Remarks about the run.
     pub notes: Vec<String>,
+    /// The risk-neutral side, with `--against`.
+    pub risk_neutral: Option<RiskNeutral>,
+}
+
+/// A risk-neutral default probability to one index pillar.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct RiskNeutralPillar {
+    /// Maturity, ISO 8601.
+    pub maturity: String,
+    /// Default probability to the protection end, fraction.
+    pub default_probability: f64,
+}
+
+/// Implied correlations of one tranche.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct RiskNeutralTranche {
+    /// Maturity, ISO 8601.
+    pub maturity: String,
+    /// Attachment, percent.
+    pub attach_pct: f64,
+    /// Detachment, percent.
+    pub detach_pct: f64,
+    /// Every compound correlation.
+    pub compound_correlation: Vec<f64>,
+    /// Base correlation at the detachment.
+    pub base_correlation: Option<f64>,
+}
+
+/// Risk-neutral over real-world ratios for one estimator.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct RiskNeutralRatios {
+    /// The estimator.
+    pub method: String,
+    /// Risk-neutral one-year PD over the estimator's PD.
+    pub pd_ratio: f64,
+    /// Base correlation over the estimator's rho, per tranche.
+    pub base_correlation_ratio: Vec<Option<f64>>,
+    /// Each compound correlation over the estimator's rho, per tranche.
+    pub compound_correlation_ratio: Vec<Vec<f64>>,
+}
+
+/// The risk-neutral side of the comparison.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct RiskNeutral {
+    /// Path of the snapshot.
+    pub snapshot: String,
+    /// The trade date used (the snapshot's last).
+    pub date: String,
+    /// Recovery of that date.
+    pub recovery: f64,
+    /// One-year risk-neutral default probability.
+    pub pd_one_year: f64,
+    /// Default probability to each index pillar.
+    pub index: Vec<RiskNeutralPillar>,
+    /// Implied correlations per tranche.
+    pub tranches: Vec<RiskNeutralTranche>,
+    /// Ratios per estimator.
+    pub ratios: Vec<RiskNeutralRatios>,
+    /// A one-line reading of the gap.
+    pub reading: String,
+}
+
+/// Sets the market's view of `snapshot`'s last trade date beside the
+/// estimates: one-year and to-maturity PD off the index curve, compound and
+/// base correlations, and the ratios risk-neutral / real-world.
+///
+/// # Errors
+/// Whatever [`crate::report::implied::build`] returns for that date.
+pub fn add_risk_neutral(
+    report: &mut RealworldReport,
+    snapshot: &crate::market::Snapshot,
+    opts: &crate::curve::MarketOptions,
+) -> Result<()> {
+    let Some(last) = snapshot.dates.last() else {
+        return Ok(());
+    };
+    let one = crate::market::Snapshot {
+        path: snapshot.path.clone(),
+        dates: vec![last.clone()],
+        warnings: vec![],
+    };
+    let curves = crate::curve::PoolCurves::build(last, opts, &snapshot.path)?;
+    let implied = crate::report::implied::build(&one, opts)?;
+    let d = &implied.dates[0];
+    let pd_one_year = curves.hazard.default_probability(1.0);
+    let tranches: Vec<RiskNeutralTranche> = d
+        .tranches
+        .iter()
+        .map(|t| RiskNeutralTranche {
+            maturity: t.maturity.clone(),
+            attach_pct: t.attach_pct,
+            detach_pct: t.detach_pct,
+            compound_correlation: t.compound_correlation.clone(),
+            base_correlation: t.base_correlation,
+        })
+        .collect();
+    let mut ratios = Vec::new();
+    for m in &report.methods {
+        let (Some(pd), Some(rho)) = (m.estimate.pd, m.estimate.rho) else {
+            continue;
+        };
+        let over = |x: f64| (rho > 0.0).then(|| x / rho);
+        ratios.push(RiskNeutralRatios {
+            method: m.estimate.method.name().to_string(),
+            pd_ratio: pd_one_year / pd,
+            base_correlation_ratio: tranches
+                .iter()
+                .map(|t| t.base_correlation.and_then(over))
+                .collect(),
+            compound_correlation_ratio: tranches
+                .iter()
+                .map(|t| {
+                    t.compound_correlation
+                        .iter()
+                        .filter_map(|&c| over(c))
+                        .collect()
+                })
+                .collect(),
+        });
+    }
+    let span = |xs: Vec<f64>| {
+        let lo = xs.iter().copied().fold(f64::INFINITY, f64::min);
+        let hi = xs.iter().copied().fold(f64::NEG_INFINITY, f64::max);
+        (lo.is_finite() && hi.is_finite()).then_some((lo, hi))
+    };
+    let pd_span = span(ratios.iter().map(|r| r.pd_ratio).collect());
+    let rho_span = span(
+        ratios
+            .iter()
+            .flat_map(|r| r.base_correlation_ratio.iter().flatten().copied())
+            .collect(),
+    );
+    let reading = match (pd_span, rho_span) {
+        (Some((a, b)), Some((c, e))) => format!(
+            "The market's one-year PD is {}x to {}x the historical estimates and its base correlations {}x to {}x the historical asset correlation: the gap is the market's premium for default and correlation risk, plus model and recovery assumptions.",
+            fixed(a, 2), fixed(b, 2), fixed(c, 2), fixed(e, 2)
+        ),
+        (Some((a, b)), None) => format!(
+            "The market's one-year PD is {}x to {}x the historical estimates (no base correlation to compare): the gap is the market's risk premium plus model and recovery assumptions.",
+            fixed(a, 2), fixed(b, 2)
+        ),
+        _ => "No estimator gave both PD and rho, so there is nothing to compare.".to_string(),
+    };
+    report.risk_neutral = Some(RiskNeutral {
+        snapshot: snapshot.path.clone(),
+        date: d.date.clone(),
+        recovery: d.recovery,
+        pd_one_year,
+        index: curves
+            .pillars
+            .iter()
+            .map(|p| RiskNeutralPillar {
+                maturity: p.maturity.to_string(),
+                default_probability: p.default_probability,
+            })
+            .collect(),
+        tranches,
+        ratios,
+        reading,
+    });
+    Ok(())
 }
 
 /// Loss quantiles at an estimate; rho = 0 is the point mass at PD.
@@ -150,6 +323,7 @@ pub fn build_realworld(
         lgd,
         methods,
         notes,
+        risk_neutral: None,
     })
 }
 
@@ -282,7 +456,11 @@ impl Report for RealworldReport {
         for n in &self.notes {
             loss.notes.extend(wrap(n, 79, 4));
         }
-        vec![est, se, loss]
+        let mut out = vec![est, se, loss];
+        if let Some(rn) = &self.risk_neutral {
+            out.extend(rn.sections());
+        }
+        out
     }
 
     fn csv(&self) -> Table {
@@ -313,6 +491,22 @@ impl Report for RealworldReport {
             headers.push(format!("loss_q{q}_pct"));
             headers.push(format!("es_q{q}_pct"));
         }
+        let rn_based: Vec<usize> = self.risk_neutral.as_ref().map_or(Vec::new(), |rn| {
+            (0..rn.tranches.len())
+                .filter(|&i| rn.tranches[i].base_correlation.is_some())
+                .collect()
+        });
+        if let Some(rn) = &self.risk_neutral {
+            headers.push("risk_neutral_pd_one_year_pct".into());
+            headers.push("pd_ratio".into());
+            for &i in &rn_based {
+                let t = &rn.tranches[i];
+                headers.push(format!(
+                    "base_correlation_ratio_{}_{}",
+                    t.maturity, t.detach_pct
+                ));
+            }
+        }
         headers.push("notes".into());
         let mut t = Table::new(&headers);
         let p = |x: Option<f64>| csv_num(x.map(|v| 100.0 * v));
@@ -337,9 +531,76 @@ impl Report for RealworldReport {
                 row.push(p(l.map(|l| l.loss_quantile)));
                 row.push(p(l.map(|l| l.expected_shortfall)));
             }
+            if let Some(rn) = &self.risk_neutral {
+                let r = rn.ratios.iter().find(|r| r.method == e.method.name());
+                row.push(p(Some(rn.pd_one_year)));
+                row.push(csv_num(r.map(|r| r.pd_ratio)));
+                for &i in &rn_based {
+                    row.push(csv_num(r.and_then(|r| r.base_correlation_ratio[i])));
+                }
+            }
             row.push(e.notes.join("; "));
             t.push(row);
         }
         t
+    }
+}
+
+impl RiskNeutral {
+    fn label(t: &RiskNeutralTranche) -> String {
+        crate::report::price::bounds_label(t.attach_pct, t.detach_pct)
+    }
+
+    fn sections(&self) -> Vec<Table> {
+        let mut side =
+            Table::new(&["tranche", "maturity", "compound", "base"]).with_title(format!(
+                "Risk-neutral side: {} on {}\nrecovery {}%, one-year default probability {}%",
+                self.snapshot,
+                self.date,
+                fixed(100.0 * self.recovery, 1),
+                fixed(100.0 * self.pd_one_year, 3)
+            ));
+        for p in &self.index {
+            side.notes.push(format!(
+                "  default probability to {}: {}%",
+                p.maturity,
+                fixed(100.0 * p.default_probability, 3)
+            ));
+        }
+        for t in &self.tranches {
+            let comp: Vec<String> = t
+                .compound_correlation
+                .iter()
+                .map(|c| fixed(*c, 4))
+                .collect();
+            side.push(vec![
+                Self::label(t),
+                t.maturity.clone(),
+                if comp.is_empty() {
+                    "none".to_string()
+                } else {
+                    comp.join(" ")
+                },
+                fixed_or(t.base_correlation, 4, "-"),
+            ]);
+        }
+        let mut headers = vec!["method".to_string(), "PD ratio".to_string()];
+        let based: Vec<usize> = (0..self.tranches.len())
+            .filter(|&i| self.tranches[i].base_correlation.is_some())
+            .collect();
+        for &i in &based {
+            headers.push(format!("base {}", fixed(self.tranches[i].detach_pct, 0)));
+        }
+        let mut ratios = Table::new(&headers)
+            .with_title("Risk-neutral / real-world (base correlation over rho at each detachment)");
+        for r in &self.ratios {
+            let mut row = vec![r.method.clone(), fixed(r.pd_ratio, 2)];
+            for &i in &based {
+                row.push(fixed_or(r.base_correlation_ratio[i], 2, "-"));
+            }
+            ratios.push(row);
+        }
+        ratios.notes.extend(wrap(&self.reading, 79, 0));
+        vec![side, ratios]
     }
 }

@@ -139,6 +139,17 @@ pub struct RealworldArgs {
     /// Snapshot to set the risk-neutral side beside the estimates.
     #[arg(long, value_name = "SNAPSHOT")]
     pub against: Option<String>,
+    /// Recovery in percent for the snapshot of `--against` (overrides its `recovery_pct`).
+    #[arg(long, value_name = "PCT", requires = "against")]
+    pub recovery: Option<f64>,
+    /// Flat rate in percent for the snapshot of `--against` when it has no `zero` rows.
+    #[arg(
+        long,
+        value_name = "PCT",
+        default_value_t = 0.0,
+        allow_negative_numbers = true
+    )]
+    pub rate: f64,
     /// Confidence levels for loss quantiles, comma-separated fractions.
     #[arg(long, value_delimiter = ',', default_values_t = [0.99, 0.999])]
     pub levels: Vec<f64>,

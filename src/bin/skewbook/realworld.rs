@@ -5,7 +5,7 @@ use crate::{Failure, Outcome};
 use skewbook::input::history::read_history;
 use skewbook::output::write_report;
 use skewbook::realworld::estimators::{Options, VarianceDivisor};
-use skewbook::report::realworld::build_realworld;
+use skewbook::report::realworld::{add_risk_neutral, build_realworld};
 use skewbook::{Error, ErrorKind};
 use std::io::Write;
 
@@ -46,14 +46,6 @@ fn parse_quantiles(items: &[String]) -> Result<Option<[(f64, f64); 2]>, Error> {
 
 /// Runs the command.
 pub fn run(args: crate::cli::RealworldArgs, out: &mut dyn Write) -> Result<Outcome, Failure> {
-    if let Some(snapshot) = &args.against {
-        // The risk-neutral comparison is not wired yet; refuse rather than
-        // silently print a report without it.
-        return Err(Failure::Lib(Error::msg(
-            ErrorKind::Usage,
-            format!("--against {snapshot}: the risk-neutral comparison is not built yet"),
-        )));
-    }
     let history = read_history(&args.file)?;
     let opts = Options {
         divisor: match args.variance_divisor {
@@ -62,7 +54,19 @@ pub fn run(args: crate::cli::RealworldArgs, out: &mut dyn Write) -> Result<Outco
         },
         quantiles: parse_quantiles(&args.quantiles)?,
     };
-    let report = build_realworld(&history, &opts, &args.levels, args.lgd)?;
+    let mut report = build_realworld(&history, &opts, &args.levels, args.lgd)?;
+    if let Some(path) = &args.against {
+        let market = skewbook::curve::MarketOptions {
+            recovery: args.recovery.map(|r| r / 100.0),
+            flat_rate: args.rate / 100.0,
+        };
+        market.validate()?;
+        let snapshot = skewbook::input::snapshot::read_snapshot(path)?;
+        for w in &snapshot.warnings {
+            eprintln!("warning: {w}");
+        }
+        add_risk_neutral(&mut report, &snapshot, &market)?;
+    }
     write_report(out, &report, args.format.into())?;
     Ok(Outcome::Clean)
 }
