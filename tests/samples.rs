@@ -127,3 +127,56 @@ fn hgx_sample_gives_back_its_generating_curve() {
         assert!((b - want).abs() < 1e-4, "{i}: {b}");
     }
 }
+
+/// Exit status 1 when the run finished but some quotes have no solution:
+/// every row is still printed, flagged, with no invented value.
+#[test]
+fn unsolved_quotes_exit_1_and_stay_in_the_output() {
+    let file = "tests/fixtures/scenarios/compound_roots.csv";
+    for format in ["table", "csv", "json"] {
+        let (code, out, err) = skewbook(&["implied", file, "--format", format]);
+        assert_eq!(code, 1, "{format}: {err}");
+        assert!(!out.to_lowercase().contains("nan"));
+        assert!(
+            out.contains("no_compound_root") && out.contains("base_chain_broken"),
+            "{out}"
+        );
+    }
+    let (_, out, _) = skewbook(&["implied", file, "--format", "json"]);
+    let v: serde_json::Value = serde_json::from_str(&out).unwrap();
+    let t = v[0]["tranches"].as_array().unwrap();
+    assert_eq!(t.len(), 8, "every quoted tranche is reported");
+    let broken = t
+        .iter()
+        .find(|x| x["flags"].to_string().contains("base_chain_broken"))
+        .unwrap();
+    assert!(broken["base_correlation"].is_null() && broken["base_note"].is_string());
+}
+
+/// Tranches that do not tile: `curve` warns and succeeds; `implied` flags
+/// them, gives no base correlation, and exits 1.
+#[test]
+fn tranches_that_do_not_tile_are_flagged() {
+    let text = "date,instrument,maturity,attach_pct,detach_pct,quote_kind,quote,coupon_bp\n\
+                2026-06-18,index,2031-06-20,,,spread_bp,60,\n\
+                2026-06-18,tranche,2031-06-20,0,3,upfront_pct,40,500\n\
+                2026-06-18,tranche,2031-06-20,7,15,spread_bp,60,\n";
+    let dir = std::env::temp_dir().join(format!("skewbook-gap-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let path = dir.join("gap.csv");
+    std::fs::write(&path, text).unwrap();
+    let p = path.to_string_lossy().into_owned();
+    let (code, _, err) = skewbook(&["curve", &p]);
+    assert_eq!(code, 0);
+    assert!(
+        err.starts_with("warning: ") && err.contains(":4:4:") && err.contains("gap from 3 to 7"),
+        "{err}"
+    );
+    let (code, out, _) = skewbook(&["implied", &p, "--format", "json"]);
+    assert_eq!(code, 1);
+    let v: serde_json::Value = serde_json::from_str(&out).unwrap();
+    for t in v[0]["tranches"].as_array().unwrap() {
+        assert!(t["base_correlation"].is_null());
+        assert!(t["flags"].to_string().contains("bounds_do_not_tile"));
+    }
+}

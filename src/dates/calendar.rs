@@ -56,7 +56,7 @@ pub fn settlement_date(trade: NaiveDate) -> NaiveDate {
 
 /// Whether `d` is a quarterly roll date: the 20th of March, June, September or December.
 pub fn is_roll_date(d: NaiveDate) -> bool {
-    d.day() == 20 && d.month() % 3 == 0
+    d.day() == 20 && d.month().is_multiple_of(3)
 }
 
 /// The first unadjusted roll date strictly after `d`.

@@ -161,6 +161,18 @@ pub fn newton_bracketed<F: FnMut(f64) -> (f64, f64)>(
     Err(Failure::NoConvergence)
 }
 
+impl std::fmt::Display for Failure {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        match self {
+            Failure::NotBracketed => write!(
+                f,
+                "the function has the same sign at both ends of the bracket"
+            ),
+            Failure::NoConvergence => write!(f, "no convergence within the iteration budget"),
+        }
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -191,17 +203,5 @@ mod tests {
             newton_bracketed(|x| (x * x + 1.0, 2.0 * x), 0.0, 2.0, 1.0, 5.0, TOL),
             Err(Failure::NotBracketed)
         );
-    }
-}
-
-impl std::fmt::Display for Failure {
-    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
-        match self {
-            Failure::NotBracketed => write!(
-                f,
-                "the function has the same sign at both ends of the bracket"
-            ),
-            Failure::NoConvergence => write!(f, "no convergence within the iteration budget"),
-        }
     }
 }

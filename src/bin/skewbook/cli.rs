@@ -167,3 +167,14 @@ pub struct RealworldArgs {
     #[arg(long, value_enum, default_value_t)]
     pub format: FormatArg,
 }
+
+#[cfg(test)]
+mod tests {
+    use super::Cli;
+    use clap::CommandFactory;
+
+    #[test]
+    fn command_line_definition_is_consistent() {
+        Cli::command().debug_assert();
+    }
+}
