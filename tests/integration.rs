@@ -2,3 +2,7 @@
 
 /// Bivariate normal CDF: mpmath fixture and identities.
 mod bvn;
+
+/// Large homogeneous pool expectations: closed form, quadrature, finite pool,
+/// Monte Carlo.
+mod lhp;
