@@ -19,3 +19,7 @@ mod samples;
 mod snapshot;
 /// Tranche legs, compound and base correlation.
 mod tranche;
+
+/// Large homogeneous pool expectations: closed form, quadrature, finite pool,
+/// Monte Carlo.
+mod lhp;

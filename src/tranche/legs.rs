@@ -13,7 +13,8 @@
 
 use crate::curve::{DiscountCurve, HazardCurve};
 use crate::dates::Schedule;
-use crate::loss::{base_tranche, Horizon};
+use crate::loss::{BaseTranche, Horizon, Method};
+use crate::math::normal::inv_cdf;
 use chrono::NaiveDate;
 
 /// Everything about a tranche's schedule that does not depend on correlation:
@@ -48,6 +49,12 @@ pub struct BaseLegs {
     pub expected_loss: f64,
 }
 
+/// A horizon for a default probability the hazard curve produced (always in [0, 1]).
+fn horizon(pd: f64) -> Horizon {
+    let pd = pd.clamp(0.0, 1.0);
+    Horizon { pd, c: inv_cdf(pd) }
+}
+
 impl TrancheSchedule {
     /// Precomputes the schedule of a tranche traded on `trade` maturing on `maturity`.
     pub fn new(
@@ -58,16 +65,14 @@ impl TrancheSchedule {
     ) -> Self {
         let s = Schedule::new(trade, maturity);
         let mut horizons = Vec::with_capacity(s.periods.len() + 1);
-        horizons.push(Horizon::new(
-            hazard.default_probability(s.periods[0].t_start),
-        ));
+        horizons.push(horizon(hazard.default_probability(s.periods[0].t_start)));
         let mut df_pay = Vec::with_capacity(s.periods.len());
         let mut half_accrual_df = Vec::with_capacity(s.periods.len());
         for p in &s.periods {
             let df = discount.df(p.t_pay);
             df_pay.push(df);
             half_accrual_df.push(0.5 * p.accrual * df);
-            horizons.push(Horizon::new(hazard.default_probability(p.t_end)));
+            horizons.push(horizon(hazard.default_probability(p.t_end)));
         }
         TrancheSchedule {
             df_pay,
@@ -93,16 +98,28 @@ impl TrancheSchedule {
         self.horizons.last().map_or(0.0, |h| h.pd)
     }
 
-    /// Legs of the base tranche [0, `detach`] at correlation `rho`, pool units.
-    /// `detach = 0` gives all zeros.
+    /// Legs of the base tranche [0, `detach`] at correlation `rho`, pool
+    /// units, by the closed form. `detach = 0` gives all zeros.
+    ///
+    /// `recovery` in [0, 1) and `detach` in [0, 1] are the snapshot reader's
+    /// guarantees; outside them (or NaN) the legs are all zero.
     pub fn base_legs(&self, recovery: f64, detach: f64, rho: f64) -> BaseLegs {
+        self.base_legs_by(recovery, detach, rho, Method::ClosedForm)
+    }
+
+    /// [`Self::base_legs`] with the expectation evaluated by `method`
+    /// (closed form, or the independent quadrature over the factor).
+    pub fn base_legs_by(&self, recovery: f64, detach: f64, rho: f64, method: Method) -> BaseLegs {
         if detach <= 0.0 {
             return BaseLegs::default();
         }
+        let Ok(base) = BaseTranche::new(recovery, detach) else {
+            return BaseLegs::default();
+        };
         let mut legs = BaseLegs::default();
-        let mut prev = base_tranche(&self.horizons[0], recovery, detach, rho);
+        let mut prev = base.expectation(&self.horizons[0], rho, method);
         for (i, h) in self.horizons[1..].iter().enumerate() {
-            let cur = base_tranche(h, recovery, detach, rho);
+            let cur = base.expectation(h, rho, method);
             let df = self.df_pay[i];
             let w = self.half_accrual_df[i];
             legs.protection += df * (cur.loss - prev.loss);
