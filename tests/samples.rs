@@ -205,8 +205,15 @@ fn closed_form_and_quadrature_agree_on_every_sample_date() {
                     for rho in [1e-4, 0.05, 0.18, 0.28, 0.41, 0.6, 0.9, 0.9999] {
                         let a = b.expectation(&h, rho, Method::ClosedForm);
                         let q = b.expectation(&h, rho, Method::Quadrature);
-                        assert!((a.loss - q.loss).abs() < 1e-10, "{file} {} {tt} {rho}", md.date);
-                        assert!((a.outstanding - q.outstanding).abs() < 1e-10, "{file} {tt} {rho}");
+                        assert!(
+                            (a.loss - q.loss).abs() < 1e-10,
+                            "{file} {} {tt} {rho}",
+                            md.date
+                        );
+                        assert!(
+                            (a.outstanding - q.outstanding).abs() < 1e-10,
+                            "{file} {tt} {rho}"
+                        );
                         checked += 1;
                     }
                 }

@@ -44,9 +44,9 @@ use crate::curve::MarketOptions;
 use crate::error::Result;
 use crate::market::{tiles_from_zero, Snapshot, TrancheQuote};
 use crate::output::{csv_num, fixed, fixed_or, pct, sci, Report, Table};
-use crate::solve::base::{base_correlation, BaseSolve, Side};
-use crate::solve::compound::{compound_roots, RHO_MAX, RHO_MIN};
-use crate::tranche::{TrancheSchedule, TrancheValuer};
+use crate::solve::base::{base_correlation_from_scan, BaseSolve, Side};
+use crate::solve::compound::{compound_roots_from_scan, scan_grid, RHO_MAX, RHO_MIN};
+use crate::tranche::{BaseLegs, TrancheSchedule, TrancheValuer};
 use serde::Serialize;
 
 /// One tranche's implied correlations.
@@ -130,6 +130,28 @@ pub fn implied_for_maturity(
     tranches: &[&TrancheQuote],
 ) -> Vec<ImpliedTranche> {
     let tiles = tiles_from_zero(tranches);
+    // Each bound's base-tranche legs on the scan grid, shared by the
+    // tranches above and below it (compound scans and base brackets).
+    let grid = scan_grid();
+    let mut scans: Vec<(f64, Vec<BaseLegs>)> = Vec::new();
+    for t in tranches {
+        for k in [t.attach, t.detach] {
+            if !scans.iter().any(|(b, _)| *b == k) {
+                let legs = grid
+                    .iter()
+                    .map(|&r| schedule.base_legs(recovery, k, r))
+                    .collect();
+                scans.push((k, legs));
+            }
+        }
+    }
+    let scan_of = |k: f64| {
+        &scans
+            .iter()
+            .find(|(b, _)| *b == k)
+            .expect("every bound was scanned above")
+            .1
+    };
     // Base correlation at the previous detachment; None once the chain breaks.
     let mut chain: Option<f64> = Some(0.0);
     let mut broken_at: Option<String> = None;
@@ -143,7 +165,13 @@ pub fn implied_for_maturity(
             quote: t.quote,
         };
         let mut flags = Vec::new();
-        let comp = compound_roots(&v);
+        let (lower_scan, upper_scan) = (scan_of(t.attach), scan_of(t.detach));
+        let flat: Vec<_> = lower_scan
+            .iter()
+            .zip(upper_scan)
+            .map(|(a, d)| v.combine(a, d, true))
+            .collect();
+        let comp = compound_roots_from_scan(&v, &flat);
         match comp.roots.len() {
             0 => flags.push("no_compound_root"),
             2.. => flags.push("two_compound_roots"),
@@ -173,7 +201,8 @@ pub fn implied_for_maturity(
                 reprice = err;
                 el = Some(loss);
             } else {
-                match base_correlation(&v, rho_a) {
+                let lower = schedule.base_legs(recovery, t.attach, rho_a);
+                match base_correlation_from_scan(&v, &lower, upper_scan) {
                     BaseSolve::Solved(s) => {
                         base = Some(s.value);
                         let (err, loss) = reprice_at(rho_a, s.value);

@@ -15,9 +15,9 @@
 //! tranche above it at the maturity have no base correlation (the chain is
 //! broken). The value is never clamped to the end of the range.
 
-use super::compound::{CORRELATION_TOLERANCE, RHO_MAX, RHO_MIN};
+use super::compound::{scan_grid, CORRELATION_TOLERANCE, RHO_MAX, RHO_MIN};
 use super::root::{newton_bracketed, Solution};
-use crate::tranche::TrancheValuer;
+use crate::tranche::{BaseLegs, TrancheValuer};
 
 /// Which side of the attainable range a quote fell on.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize)]
@@ -44,27 +44,60 @@ pub enum BaseSolve {
 }
 
 /// Solves rho_D for tranche `v` given rho_A at its attachment (ignored when
-/// the attachment is 0).
+/// the attachment is 0), bracketing on the ends of the search range.
 ///
 /// # Formula
 /// ```text
 /// find rho_D:  (prot_D(rho_D) - prot_A(rho_A)) - c (ann_D(rho_D) - ann_A(rho_A)) - u DF(ts) W = 0
 /// ```
 pub fn base_correlation(v: &TrancheValuer, rho_attach: f64) -> BaseSolve {
-    let lo = v.legs(rho_attach, RHO_MIN);
-    let hi = v.legs(rho_attach, RHO_MAX);
-    let (f_lo, f_hi) = (v.value(&lo), v.value(&hi));
-    if f_lo * f_hi <= 0.0 {
-        let fdf = |rho: f64| {
-            let legs = v.legs(rho_attach, rho);
-            (v.value(&legs), v.d_value(&legs))
-        };
-        if let Ok(s) = newton_bracketed(fdf, RHO_MIN, RHO_MAX, f_lo, f_hi, CORRELATION_TOLERANCE) {
-            return BaseSolve::Solved(s);
+    let lower = v.schedule.base_legs(v.recovery, v.attach, rho_attach);
+    let ends = [
+        v.schedule.base_legs(v.recovery, v.detach, RHO_MIN),
+        v.schedule.base_legs(v.recovery, v.detach, RHO_MAX),
+    ];
+    solve_on(v, &lower, &[RHO_MIN, RHO_MAX], &ends)
+}
+
+/// [`base_correlation`] with the upper base tranche's legs already evaluated
+/// at each correlation of [`scan_grid`] (as the compound scan has them), and
+/// the lower base's legs at rho_A: the bracket comes from the scan for free.
+pub fn base_correlation_from_scan(
+    v: &TrancheValuer,
+    lower: &BaseLegs,
+    upper_scan: &[BaseLegs],
+) -> BaseSolve {
+    solve_on(v, lower, &scan_grid(), upper_scan)
+}
+
+/// Polishes the first sign change of the value over `rhos` by bracketed
+/// Newton, or reports which side of the range the quote lies on.
+fn solve_on(v: &TrancheValuer, lower: &BaseLegs, rhos: &[f64], upper: &[BaseLegs]) -> BaseSolve {
+    let legs: Vec<_> = upper.iter().map(|u| v.combine(lower, u, false)).collect();
+    let f: Vec<f64> = legs.iter().map(|l| v.value(l)).collect();
+    for i in 0..f.len() - 1 {
+        if f[i] * f[i + 1] <= 0.0 {
+            let fdf = |rho: f64| {
+                let u = v.schedule.base_legs(v.recovery, v.detach, rho);
+                let l = v.combine(lower, &u, false);
+                (v.value(&l), v.d_value(&l))
+            };
+            if let Ok(s) = newton_bracketed(
+                fdf,
+                rhos[i],
+                rhos[i + 1],
+                f[i],
+                f[i + 1],
+                CORRELATION_TOLERANCE,
+            ) {
+                return BaseSolve::Solved(s);
+            }
         }
     }
-    let q_lo = v.model_quote(&lo).unwrap_or(f64::INFINITY);
-    let q_hi = v.model_quote(&hi).unwrap_or(f64::INFINITY);
+    let q_lo = v.model_quote(&legs[0]).unwrap_or(f64::INFINITY);
+    let q_hi = v
+        .model_quote(&legs[legs.len() - 1])
+        .unwrap_or(f64::INFINITY);
     let quote = v.quote.in_file_unit();
     let side = if quote > q_lo.max(q_hi) {
         Side::Above

@@ -77,6 +77,15 @@ struct Sample {
 /// # References
 /// Torresetti, Brigo and Pallavicini (2006) for the zero- and two-root cases.
 pub fn compound_roots(v: &TrancheValuer) -> CompoundSolve {
+    let scan: Vec<TrancheLegs> = scan_grid().iter().map(|&rho| v.legs_flat(rho)).collect();
+    compound_roots_from_scan(v, &scan)
+}
+
+/// [`compound_roots`] from the tranche's legs already evaluated at each
+/// correlation of [`scan_grid`] (flat: derivatives in the common rho), so
+/// tranches of one maturity can share their base tranches' scans.
+pub fn compound_roots_from_scan(v: &TrancheValuer, scan: &[TrancheLegs]) -> CompoundSolve {
+    assert_eq!(scan.len(), SCAN_POINTS, "one set of legs per scan point");
     let mut lo_q = f64::INFINITY;
     let mut hi_q = f64::NEG_INFINITY;
     let mut note = |legs: &TrancheLegs| {
@@ -87,13 +96,13 @@ pub fn compound_roots(v: &TrancheValuer) -> CompoundSolve {
     };
     let samples: Vec<Sample> = scan_grid()
         .iter()
-        .map(|&rho| {
-            let legs = v.legs_flat(rho);
-            note(&legs);
+        .zip(scan)
+        .map(|(&rho, legs)| {
+            note(legs);
             Sample {
                 rho,
-                value: v.value(&legs),
-                slope: v.d_value(&legs),
+                value: v.value(legs),
+                slope: v.d_value(legs),
             }
         })
         .collect();

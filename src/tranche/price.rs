@@ -12,7 +12,7 @@
 //! ```
 //! A `spread_bp` quote s is the case c = s, u = 0.
 
-use super::legs::TrancheSchedule;
+use super::legs::{BaseLegs, TrancheSchedule};
 use crate::market::Quote;
 
 /// Legs of one tranche per unit of tranche notional.
@@ -68,33 +68,35 @@ impl TrancheValuer<'_> {
     /// Legs with the attachment's base at `rho_attach` and the detachment's
     /// at `rho_detach`. Derivatives are in `rho_detach` only.
     pub fn legs(&self, rho_attach: f64, rho_detach: f64) -> TrancheLegs {
-        let w = self.detach - self.attach;
         let d = self
             .schedule
             .base_legs(self.recovery, self.detach, rho_detach);
         let a = self
             .schedule
             .base_legs(self.recovery, self.attach, rho_attach);
-        TrancheLegs {
-            protection: (d.protection - a.protection) / w,
-            annuity: (d.annuity - a.annuity) / w,
-            d_protection: d.d_protection / w,
-            d_annuity: d.d_annuity / w,
-            expected_loss: ((d.expected_loss - a.expected_loss) / w).clamp(0.0, 1.0),
-        }
+        self.combine(&a, &d, false)
     }
 
     /// Legs at one flat correlation, derivatives in that correlation.
     pub fn legs_flat(&self, rho: f64) -> TrancheLegs {
-        let w = self.detach - self.attach;
         let d = self.schedule.base_legs(self.recovery, self.detach, rho);
         let a = self.schedule.base_legs(self.recovery, self.attach, rho);
+        self.combine(&a, &d, true)
+    }
+
+    /// The tranche's legs from its two base tranches' legs (pool units):
+    /// `(upper - lower) / W`. With `flat`, both bases sit at one correlation
+    /// and the derivatives are in it; otherwise the lower base is held and
+    /// the derivatives are in the upper base's correlation.
+    pub fn combine(&self, lower: &BaseLegs, upper: &BaseLegs, flat: bool) -> TrancheLegs {
+        let w = self.detach - self.attach;
+        let held = if flat { 1.0 } else { 0.0 };
         TrancheLegs {
-            protection: (d.protection - a.protection) / w,
-            annuity: (d.annuity - a.annuity) / w,
-            d_protection: (d.d_protection - a.d_protection) / w,
-            d_annuity: (d.d_annuity - a.d_annuity) / w,
-            expected_loss: ((d.expected_loss - a.expected_loss) / w).clamp(0.0, 1.0),
+            protection: (upper.protection - lower.protection) / w,
+            annuity: (upper.annuity - lower.annuity) / w,
+            d_protection: (upper.d_protection - held * lower.d_protection) / w,
+            d_annuity: (upper.d_annuity - held * lower.d_annuity) / w,
+            expected_loss: ((upper.expected_loss - lower.expected_loss) / w).clamp(0.0, 1.0),
         }
     }
 
