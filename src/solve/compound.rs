@@ -25,7 +25,7 @@ pub const RHO_MIN: f64 = 1e-4;
 /// Upper end of the correlation search.
 pub const RHO_MAX: f64 = 0.9999;
 /// Correlations sampled by the scan.
-pub const SCAN_POINTS: usize = 24;
+pub const SCAN_POINTS: usize = 12;
 
 /// Stopping rule for correlation solves: value per unit tranche notional
 /// below 1e-14, or the bracket in rho below 1e-13.
