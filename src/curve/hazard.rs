@@ -7,7 +7,7 @@
 //! depends only on the hazard up to its own protection end, so once a pillar
 //! is solved, later pillars cannot disturb it: every quote reprices exactly.
 
-use super::legs::{index_legs, IndexLegs};
+use super::legs::{index_legs, index_legs_of_periods, IndexLegs};
 use super::piecewise::PiecewiseConstant;
 use super::DiscountCurve;
 use crate::dates::Schedule;
@@ -128,14 +128,32 @@ pub fn bootstrap(
         let knot = schedule.protection_end_time();
         let df_settle = discount.df(schedule.settlement_time());
         let target = q.quote.in_file_unit();
-        let curve_with = |h: f64| {
-            let mut k = knots.clone();
+        // Periods ending by the previous knot do not depend on this pillar's
+        // hazard: price them once.
+        let previous = knots.last().copied().unwrap_or(0.0);
+        let split = schedule.periods.partition_point(|p| p.t_end <= previous);
+        let n = schedule.periods.len();
+        let mut k = knots.clone();
+        k.push(knot);
+        let mut v = hazards.clone();
+        v.push(0.0);
+        let fixed = index_legs_of_periods(
+            &schedule,
+            discount,
+            HazardCurve::from_knots(&k, &v).rate(),
+            recovery,
+            0..split,
+        );
+        let legs_at = |h: f64| {
             let mut v = hazards.clone();
-            k.push(knot);
             v.push(h);
-            HazardCurve::from_knots(&k, &v)
+            let curve = HazardCurve::from_knots(&k, &v);
+            let rest = index_legs_of_periods(&schedule, discount, curve.rate(), recovery, split..n);
+            IndexLegs {
+                protection: fixed.protection + rest.protection,
+                annuity: fixed.annuity + rest.annuity,
+            }
         };
-        let legs_at = |h: f64| index_legs(&schedule, discount, curve_with(h).rate(), recovery);
         let gap = |h: f64| model_quote(legs_at(h), q.quote, df_settle) - target;
         let fail = |why: String| {
             Error::new(

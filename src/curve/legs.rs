@@ -125,10 +125,29 @@ pub fn index_legs(
     hazard: &PiecewiseConstant,
     recovery: f64,
 ) -> IndexLegs {
+    index_legs_of_periods(
+        schedule,
+        discount,
+        hazard,
+        recovery,
+        0..schedule.periods.len(),
+    )
+}
+
+/// The legs' contributions of the periods `range` of the schedule only
+/// (their sum over a partition of the periods is [`index_legs`]). The
+/// bootstrap uses it to price once the periods a new pillar cannot touch.
+pub fn index_legs_of_periods(
+    schedule: &Schedule,
+    discount: &DiscountCurve,
+    hazard: &PiecewiseConstant,
+    recovery: f64,
+    range: std::ops::Range<usize>,
+) -> IndexLegs {
     let fwd = discount.forward();
     let mut cuts = Vec::with_capacity(8);
     let (mut default_pv, mut annuity) = (0.0, 0.0);
-    for p in &schedule.periods {
+    for p in &schedule.periods[range] {
         breakpoints(p.t_start, p.t_end, hazard, fwd, &mut cuts);
         let mut accrued = 0.0;
         for w in cuts.windows(2) {
