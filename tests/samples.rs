@@ -137,10 +137,12 @@ fn unsolved_quotes_exit_1_and_stay_in_the_output() {
         let (code, out, err) = skewbook(&["implied", file, "--format", format]);
         assert_eq!(code, 1, "{format}: {err}");
         assert!(!out.to_lowercase().contains("nan"));
-        assert!(
-            out.contains("no_compound_root") && out.contains("base_chain_broken"),
-            "{out}"
-        );
+        let (none, broken) = if format == "table" {
+            ("no root", "chain broken")
+        } else {
+            ("no_compound_root", "base_chain_broken")
+        };
+        assert!(out.contains(none) && out.contains(broken), "{out}");
     }
     let (_, out, _) = skewbook(&["implied", file, "--format", "json"]);
     let v: serde_json::Value = serde_json::from_str(&out).unwrap();
@@ -221,4 +223,61 @@ fn closed_form_and_quadrature_agree_on_every_sample_date() {
         }
     }
     assert!(checked > 10_000, "{checked}");
+}
+
+fn write_temp(name: &str, text: &str) -> String {
+    let dir = std::env::temp_dir().join(format!("skewbook-{}-{name}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let path = dir.join(format!("{name}.csv"));
+    std::fs::write(&path, text).unwrap();
+    path.to_string_lossy().into_owned()
+}
+
+/// An equity upfront no correlation can reach (above what the tranche can
+/// lose at any rho) gets flags and the attainable range, never a value;
+/// the tranches above it lose their base correlation with it.
+#[test]
+fn unreachable_equity_upfront_is_flagged_not_clamped() {
+    let p = write_temp(
+        "equity",
+        "date,instrument,maturity,attach_pct,detach_pct,quote_kind,quote,coupon_bp\n\
+         2026-06-18,index,2031-06-20,,,spread_bp,60,\n\
+         2026-06-18,tranche,2031-06-20,0,3,upfront_pct,95,500\n\
+         2026-06-18,tranche,2031-06-20,3,7,spread_bp,250,\n",
+    );
+    let (code, out, _) = skewbook(&["implied", &p, "--format", "json"]);
+    assert_eq!(code, 1);
+    let v: serde_json::Value = serde_json::from_str(&out).unwrap();
+    let eq = &v[0]["tranches"][0];
+    assert!(eq["compound_correlation"].as_array().unwrap().is_empty());
+    assert!(eq["base_correlation"].is_null());
+    let flags = eq["flags"].to_string();
+    assert!(
+        flags.contains("no_compound_root") && flags.contains("base_quote_above_range"),
+        "{flags}"
+    );
+    let hi = eq["compound_range"][1].as_f64().unwrap();
+    assert!(hi < 95.0 && hi > 0.0);
+    assert!(v[0]["tranches"][1]["flags"]
+        .to_string()
+        .contains("base_chain_broken"));
+    let (_, table, _) = skewbook(&["implied", &p]);
+    assert!(table.contains("no compound correlation") && table.contains("no base correlation"));
+}
+
+/// Every table line of `implied`, `curve` and `price` fits an 80-column terminal.
+#[test]
+fn tables_fit_80_columns() {
+    for file in snapshots() {
+        for cmd in [
+            vec!["implied", file.as_str()],
+            vec!["curve", file.as_str()],
+            vec!["price", file.as_str(), "--correlation", "0.25"],
+        ] {
+            let (_, out, _) = skewbook(&cmd);
+            for line in out.lines() {
+                assert!(line.chars().count() <= 80, "{cmd:?}: {line}");
+            }
+        }
+    }
 }

@@ -196,3 +196,22 @@ pub fn pct(x: f64) -> f64 {
 pub fn sci(x: f64, digits: usize) -> String {
     format!("{x:.digits$e}")
 }
+
+/// Wraps `text` at `width` columns, continuation lines indented by `indent`.
+pub fn wrap(text: &str, width: usize, indent: usize) -> Vec<String> {
+    let mut lines = Vec::new();
+    let mut cur = String::new();
+    for word in text.split_whitespace() {
+        if !cur.is_empty() && cur.chars().count() + 1 + word.chars().count() > width {
+            lines.push(std::mem::take(&mut cur));
+            cur = " ".repeat(indent);
+        } else if !cur.is_empty() && !cur.ends_with(' ') {
+            cur.push(' ');
+        }
+        cur.push_str(word);
+    }
+    if !cur.trim().is_empty() {
+        lines.push(cur);
+    }
+    lines
+}

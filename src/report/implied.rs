@@ -43,7 +43,7 @@ use super::price::bounds_label;
 use crate::curve::MarketOptions;
 use crate::error::Result;
 use crate::market::{tiles_from_zero, Snapshot, TrancheQuote};
-use crate::output::{csv_num, fixed, fixed_or, pct, sci, Report, Table};
+use crate::output::{csv_num, fixed, fixed_or, pct, sci, wrap, Report, Table};
 use crate::solve::base::{base_correlation_from_scan, BaseSolve, Side};
 use crate::solve::compound::{compound_roots_from_scan, scan_grid, RHO_MAX, RHO_MIN};
 use crate::tranche::{BaseLegs, TrancheSchedule, TrancheValuer};
@@ -282,6 +282,21 @@ pub fn build(snapshot: &Snapshot, opts: &MarketOptions) -> Result<ImpliedReport>
     Ok(ImpliedReport { dates })
 }
 
+/// The table's short form of a flag (CSV and JSON carry the full names).
+fn short_flag(flag: &str) -> &str {
+    match flag {
+        "no_compound_root" => "no root",
+        "two_compound_roots" => "2 roots",
+        "compound_tangent" => "tangent",
+        "base_quote_above_range" => "above range",
+        "base_quote_below_range" => "below range",
+        "base_chain_broken" => "chain broken",
+        "bounds_do_not_tile" => "gaps",
+        "top_tranche" => "top",
+        other => other,
+    }
+}
+
 fn pct_list(xs: &[f64]) -> String {
     if xs.is_empty() {
         "none".to_string()
@@ -331,20 +346,25 @@ impl Report for ImpliedReport {
                         fixed_or(r.base_correlation.map(|b| b * 100.0), 2, "-"),
                         fixed_or(r.expected_loss_pct, 2, "-"),
                         r.base_reprice_error.map_or("-".to_string(), |e| sci(e, 0)),
-                        r.flags.join(","),
+                        r.flags
+                            .iter()
+                            .map(|f| short_flag(f))
+                            .collect::<Vec<_>>()
+                            .join(","),
                     ]);
                     if r.compound_correlation.is_empty() {
-                        t.notes.push(format!(
-                            "  {}: no compound correlation; model quotes span {} to {} over rho in [{RHO_MIN}, {RHO_MAX}]",
+                        t.notes.extend(wrap(&format!(
+                            "{}: no compound correlation; model quotes span {} to {} over rho in [{RHO_MIN}, {RHO_MAX}]",
                             bounds_label(r.attach_pct, r.detach_pct),
                             fixed(r.compound_range[0], 4),
                             fixed(r.compound_range[1], 4)
-                        ));
+                        ), 79, 4));
                     }
                     if let (Some(n), false) = (&r.base_note, r.flags.contains(&"top_tranche")) {
-                        t.notes.push(format!(
-                            "  {}: {n}",
-                            bounds_label(r.attach_pct, r.detach_pct)
+                        t.notes.extend(wrap(
+                            &format!("{}: {n}", bounds_label(r.attach_pct, r.detach_pct)),
+                            79,
+                            4,
                         ));
                     }
                 }

@@ -31,7 +31,7 @@
 
 use crate::error::Result;
 use crate::input::history::{History, HistoryKind};
-use crate::output::{csv_num, fixed, fixed_or, Report, Table};
+use crate::output::{csv_num, fixed, fixed_or, wrap, Report, Table};
 use crate::realworld::estimators::{estimate_all, Estimate, Options, VarianceDivisor};
 use crate::realworld::vasicek::Vasicek;
 use serde::Serialize;
@@ -338,25 +338,6 @@ fn interval(ci: Option<[f64; 2]>, scale: f64, decimals: usize) -> String {
             )
         },
     )
-}
-
-/// Wraps `text` at `width` columns, continuation lines indented by `indent`.
-fn wrap(text: &str, width: usize, indent: usize) -> Vec<String> {
-    let mut lines = Vec::new();
-    let mut cur = String::new();
-    for word in text.split_whitespace() {
-        if !cur.is_empty() && cur.chars().count() + 1 + word.chars().count() > width {
-            lines.push(std::mem::take(&mut cur));
-            cur = " ".repeat(indent);
-        } else if !cur.is_empty() && !cur.ends_with(' ') {
-            cur.push(' ');
-        }
-        cur.push_str(word);
-    }
-    if !cur.trim().is_empty() {
-        lines.push(cur);
-    }
-    lines
 }
 
 fn level_label(q: f64) -> String {
