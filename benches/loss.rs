@@ -2,8 +2,8 @@
 //! inner loop of tranche pricing) and base-tranche expectations by the
 //! closed form and by quadrature. Each iteration asserts its result.
 use criterion::{black_box, criterion_group, criterion_main, Criterion};
-use skewbook::loss::{closed, quadrature, BaseTranche, Cap, Horizon, Method};
-use skewbook::math::bvn::{bvn_cdf, norm_cdf};
+use skewbook::loss::{closed, quadrature, BaseTranche, Cap, Correlation, Horizon, Method};
+use skewbook::math::bvn::{bvn_cdf, norm_cdf, Bvn};
 
 fn bvn(c: &mut Criterion) {
     let mut g = c.benchmark_group("bvn/genz");
@@ -17,6 +17,24 @@ fn bvn(c: &mut Criterion) {
         g.bench_function(name, |b| {
             b.iter(|| {
                 let p = bvn_cdf(black_box(h), black_box(k), black_box(r));
+                assert!(p > 0.0 && p < 0.06);
+                p
+            })
+        });
+    }
+    g.finish();
+    // the same with the r-dependent part built once (Bvn::new outside the loop)
+    let mut g = c.benchmark_group("bvn/genz_fixed_r");
+    for (name, h, k, r) in [
+        ("r0.2", -1.6, 0.4, -0.2),
+        ("r0.5", -1.6, 0.4, -0.5),
+        ("r0.8", -1.6, 0.4, -0.8),
+        ("r0.95", -1.6, 0.4, -0.95),
+    ] {
+        let rule = Bvn::new(r);
+        g.bench_function(name, |b| {
+            b.iter(|| {
+                let p = rule.cdf(black_box(h), black_box(k));
                 assert!(p > 0.0 && p < 0.06);
                 p
             })
@@ -62,15 +80,22 @@ fn lhp(c: &mut Criterion) {
             })
         });
     }
-    // the pricer's pattern: a sweep of rho at fixed horizon and tranche
-    c.bench_function("lhp/base/closed/sweep40", |b| {
+    let at = Correlation::new(0.3);
+    c.bench_function("lhp/base/closed_at", |b| {
         b.iter(|| {
-            let mut total = 0.0;
-            for i in 1..=40 {
-                total += base
-                    .expectation(&h, black_box(i as f64 / 41.0), Method::ClosedForm)
-                    .loss;
-            }
+            let e = base.closed_form(black_box(&h), &at);
+            assert!(e.loss > 0.0 && e.loss < 0.07 && e.outstanding > 0.0);
+            e
+        })
+    });
+    // the pricer's pattern: one correlation, a base tranche at 40 horizons
+    let horizons: Vec<Horizon> = (1..=40)
+        .map(|i| Horizon::new(0.0025 * i as f64).expect("pd"))
+        .collect();
+    c.bench_function("lhp/base/closed_at/horizons40", |b| {
+        b.iter(|| {
+            let at = Correlation::new(black_box(0.3));
+            let total: f64 = horizons.iter().map(|h| base.closed_form(h, &at).loss).sum();
             assert!(total > 0.0 && total < 40.0 * 0.07);
             total
         })
