@@ -161,6 +161,73 @@ fn closed_form_matches_quadrature() {
     eprintln!("closed vs quadrature: value {worst:e}, drho (relative) {worst_d:e}");
 }
 
+fn text_num(v: &serde_json::Value, key: &str) -> f64 {
+    let s = v[key]
+        .as_str()
+        .unwrap_or_else(|| panic!("fixture field {key} is not a string"));
+    s.parse()
+        .unwrap_or_else(|e| panic!("fixture field {key} = {s:?}: {e}"))
+}
+
+/// E[min(p, k)] and its rho derivative against tests/fixtures/lhp.json
+/// (tests/reference/lhp_fixtures.py: mpmath at 30 digits, the factor
+/// integral confirmed by integrating Vasicek's distribution; derivative by
+/// mpmath.diff). Both methods, PD 1e-6..0.9, rho 1e-4..0.9999.
+#[test]
+fn mpmath_large_pool_fixture() {
+    let doc: serde_json::Value =
+        serde_json::from_str(include_str!("fixtures/lhp.json")).expect("lhp.json parses");
+    assert!(doc["library"]
+        .as_str()
+        .is_some_and(|s| s.starts_with("mpmath")));
+    let cases = doc["cases"].as_array().expect("cases");
+    assert_eq!(cases.len(), 200);
+    let (mut worst_abs, mut worst_rel, mut worst_d) = (0.0f64, 0.0f64, 0.0f64);
+    for case in cases {
+        let (pd, rho, k) = (
+            text_num(case, "pd"),
+            text_num(case, "rho"),
+            text_num(case, "k"),
+        );
+        let (want, want_d) = (text_num(case, "value"), text_num(case, "drho"));
+        let (h, cap) = (horizon(pd), Cap::new(k));
+        for m in BOTH {
+            let e = expected_min(&h, &cap, rho, m);
+            let err = (e.value - want).abs();
+            assert!(
+                err < 1e-15 && err < 1e-9 * want,
+                "pd {pd} rho {rho} k {k} {m:?}: {:e} vs mpmath {want:e}",
+                e.value
+            );
+            // relative where the derivative is material, absolute where it
+            // is below 1e-8 (there mpmath.diff itself is only good to ~1e-20)
+            let dabs = (e.drho - want_d).abs();
+            if want_d.abs() > 1e-8 {
+                let derr = dabs / want_d.abs();
+                assert!(
+                    derr < 1e-9,
+                    "pd {pd} rho {rho} k {k} {m:?}: drho {:e} vs mpmath {want_d:e}",
+                    e.drho
+                );
+                if m == Method::ClosedForm {
+                    worst_d = worst_d.max(derr);
+                }
+            } else {
+                assert!(
+                    dabs < 1e-15,
+                    "pd {pd} rho {rho} k {k} {m:?}: drho {:e}",
+                    e.drho
+                );
+            }
+            worst_abs = worst_abs.max(err);
+            worst_rel = worst_rel.max(err / want);
+        }
+    }
+    eprintln!(
+        "lhp vs mpmath: abs {worst_abs:e}, rel {worst_rel:e}, closed-form drho rel (|drho| > 1e-8) {worst_d:e}"
+    );
+}
+
 /// Law of the model: tranches spanning [0, 100%] add up, width-weighted, to
 /// the pool loss (1 - R) PD and the pool recovery R PD, at every rho;
 /// [0, 100%] itself loses (1 - R) PD and amortises R PD (reference-values.md).

@@ -10,8 +10,8 @@
 //! Differentiating under the integral (the kink term vanishes because
 //! `p(A) = k`) gives the derivative in `rho`.
 
-use super::{edge_drho, edge_value, Cap, Horizon};
-use crate::math::bvn::{bvn_cdf, norm_cdf};
+use super::{edge_drho, edge_value, Cap, Correlation, Horizon};
+use crate::math::bvn::norm_cdf;
 use crate::math::normal::pdf;
 
 /// `E[min(p(Z), k)]` by the closed form.
@@ -46,13 +46,37 @@ use crate::math::normal::pdf;
 /// ```
 #[inline]
 pub fn value(h: &Horizon, cap: &Cap, rho: f64) -> f64 {
-    let rho = rho.clamp(0.0, 1.0);
-    if let Some(v) = edge_value(h, cap, rho) {
+    value_at(h, cap, &Correlation::new(rho))
+}
+
+/// [`value`] at a precomputed [`Correlation`]: the form to use when many
+/// horizons and caps are valued at one correlation (no square roots, no
+/// trigonometry, no inverse normal per call).
+///
+/// # Formula
+///
+/// See [`value`].
+///
+/// # References
+///
+/// Vasicek (2002), "Loan portfolio value", Risk 15(12).
+///
+/// # Example
+///
+/// ```
+/// use skewbook::loss::{closed, Cap, Correlation, Horizon};
+/// let (h, cap) = (Horizon::new(0.05)?, Cap::new(0.05));
+/// let at = Correlation::new(0.3);
+/// assert_eq!(closed::value_at(&h, &cap, &at), closed::value(&h, &cap, 0.3));
+/// # Ok::<(), skewbook::Error>(())
+/// ```
+#[inline]
+pub fn value_at(h: &Horizon, cap: &Cap, corr: &Correlation) -> f64 {
+    if let Some(v) = edge_value(h, cap, corr.rho) {
         return v;
     }
-    let sr = rho.sqrt();
-    let a = (h.c - (1.0 - rho).sqrt() * cap.g) / sr;
-    bvn_cdf(h.c, -a, -sr) + cap.k * norm_cdf(a)
+    let a = (h.c - corr.s1 * cap.g) / corr.sr;
+    corr.bvn.cdf(h.c, -a) + cap.k * norm_cdf(a)
 }
 
 /// `d E[min(p(Z), k)] / d rho` by the closed form.
@@ -69,7 +93,7 @@ pub fn value(h: &Horizon, cap: &Cap, rho: f64) -> f64 {
 /// # References
 ///
 /// Differentiation of the closed form under the factor integral; the
-/// reference sheet's [hp] check (central difference, ~1e-11).
+/// reference sheet's high-precision check (central difference, ~1e-11).
 ///
 /// # Example
 ///
@@ -84,10 +108,36 @@ pub fn value(h: &Horizon, cap: &Cap, rho: f64) -> f64 {
 #[inline]
 pub fn drho(h: &Horizon, cap: &Cap, rho: f64) -> f64 {
     let rho = rho.clamp(0.0, 1.0);
+    drho_roots(h, cap, rho, rho.sqrt(), (1.0 - rho).sqrt())
+}
+
+/// [`drho`] at a precomputed [`Correlation`].
+///
+/// # Formula
+///
+/// See [`drho`].
+///
+/// # References
+///
+/// Vasicek (2002), "Loan portfolio value", Risk 15(12).
+///
+/// # Example
+///
+/// ```
+/// use skewbook::loss::{closed, Cap, Correlation, Horizon};
+/// let (h, cap) = (Horizon::new(0.05)?, Cap::new(0.05));
+/// assert_eq!(closed::drho_at(&h, &cap, &Correlation::new(0.3)), closed::drho(&h, &cap, 0.3));
+/// # Ok::<(), skewbook::Error>(())
+/// ```
+#[inline]
+pub fn drho_at(h: &Horizon, cap: &Cap, corr: &Correlation) -> f64 {
+    drho_roots(h, cap, corr.rho, corr.sr, corr.s1)
+}
+
+fn drho_roots(h: &Horizon, cap: &Cap, rho: f64, sr: f64, s1: f64) -> f64 {
     if let Some(d) = edge_drho(h, cap, rho) {
         return d;
     }
-    let (sr, s1) = (rho.sqrt(), (1.0 - rho).sqrt());
     let a = (h.c - s1 * cap.g) / sr;
     let num = pdf(a) * pdf(cap.g);
     if num == 0.0 {

@@ -41,6 +41,9 @@
 //! - [`base_tranche`] and [`tranche`] are one-shot conveniences (closed
 //!   form) that build the above and evaluate once.
 //! - [`Method`] chooses the closed form or the quadrature.
+//! - [`Correlation`] precomputes what depends on `rho` alone (square roots,
+//!   the bivariate normal rule); `closed_form(h, &corr)` on both tranche
+//!   types is the fast path for valuing many horizons at one `rho`.
 //!
 //! # Edge cases (no NaN)
 //!
@@ -71,6 +74,7 @@ pub mod closed;
 pub mod quadrature;
 
 use crate::error::{Error, ErrorKind, Result};
+use crate::math::bvn::Bvn;
 use crate::math::normal::inv_cdf;
 
 /// One horizon of the pool: default probability and its normal threshold.
@@ -134,6 +138,48 @@ impl Cap {
     }
 }
 
+/// A correlation `rho` with what the closed form needs precomputed:
+/// `sqrt(rho)`, `sqrt(1 - rho)` and the bivariate normal rule at
+/// `r = -sqrt(rho)`.
+///
+/// A tranche valuation at one correlation calls the closed form for every
+/// horizon and both caps of both base tranches; building this once per
+/// `rho` keeps the per-call cost at one [`Bvn::cdf`] and one normal CDF.
+#[derive(Debug, Clone)]
+pub struct Correlation {
+    rho: f64,
+    sr: f64,
+    s1: f64,
+    bvn: Bvn,
+}
+
+impl Correlation {
+    /// Precompute for `rho`, clamped to `[0, 1]` (NaN stays NaN and gives
+    /// NaN values).
+    ///
+    /// # Example
+    ///
+    /// ```
+    /// use skewbook::loss::Correlation;
+    /// assert_eq!(Correlation::new(1.5).rho(), 1.0);
+    /// ```
+    pub fn new(rho: f64) -> Correlation {
+        let rho = rho.clamp(0.0, 1.0);
+        let sr = rho.sqrt();
+        Correlation {
+            rho,
+            sr,
+            s1: (1.0 - rho).sqrt(),
+            bvn: Bvn::new(-sr),
+        }
+    }
+
+    /// The (clamped) correlation.
+    pub fn rho(&self) -> f64 {
+        self.rho
+    }
+}
+
 /// How `E[min(p(Z), k)]` is evaluated.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
 pub enum Method {
@@ -182,10 +228,13 @@ pub struct Expectation {
 /// ```
 pub fn expected_min(h: &Horizon, cap: &Cap, rho: f64, method: Method) -> Expectation {
     match method {
-        Method::ClosedForm => Expectation {
-            value: closed::value(h, cap, rho),
-            drho: closed::drho(h, cap, rho),
-        },
+        Method::ClosedForm => {
+            let corr = Correlation::new(rho);
+            Expectation {
+                value: closed::value_at(h, cap, &corr),
+                drho: closed::drho_at(h, cap, &corr),
+            }
+        }
         Method::Quadrature => quadrature::value_and_drho(h, cap, rho),
     }
 }
@@ -296,16 +345,52 @@ impl BaseTranche {
     /// # Ok::<(), skewbook::Error>(())
     /// ```
     pub fn expectation(&self, h: &Horizon, rho: f64, method: Method) -> BaseExpectation {
+        match method {
+            Method::ClosedForm => self.closed_form(h, &Correlation::new(rho)),
+            Method::Quadrature => self.assemble(h, |cap| quadrature::value_and_drho(h, cap, rho)),
+        }
+    }
+
+    /// [`BaseTranche::expectation`] by the closed form at a precomputed
+    /// [`Correlation`] (the pricer's inner loop).
+    ///
+    /// # Formula
+    ///
+    /// See [`BaseTranche::expectation`].
+    ///
+    /// # References
+    ///
+    /// Vasicek (2002), "Loan portfolio value", Risk 15(12).
+    ///
+    /// # Example
+    ///
+    /// ```
+    /// use skewbook::loss::{BaseTranche, Correlation, Horizon, Method};
+    /// let (h, base) = (Horizon::new(0.05)?, BaseTranche::new(0.4, 0.07)?);
+    /// let at = Correlation::new(0.3);
+    /// assert_eq!(base.closed_form(&h, &at), base.expectation(&h, 0.3, Method::ClosedForm));
+    /// # Ok::<(), skewbook::Error>(())
+    /// ```
+    #[inline]
+    pub fn closed_form(&self, h: &Horizon, corr: &Correlation) -> BaseExpectation {
+        self.assemble(h, |cap| Expectation {
+            value: closed::value_at(h, cap, corr),
+            drho: closed::drho_at(h, cap, corr),
+        })
+    }
+
+    #[inline]
+    fn assemble(&self, h: &Horizon, expect: impl Fn(&Cap) -> Expectation) -> BaseExpectation {
         let (r, k) = (self.recovery, self.detach);
         let lgd = 1.0 - r;
         let (loss, dloss) = if lgd > 0.0 && k > 0.0 {
-            let e = expected_min(h, &self.loss_cap, rho, method);
+            let e = expect(&self.loss_cap);
             (lgd * e.value, lgd * e.drho)
         } else {
             (0.0, 0.0)
         };
         let (capped_rec, dcapped_rec) = if r > 0.0 && k < 1.0 {
-            let e = expected_min(h, &self.recovery_cap, rho, method);
+            let e = expect(&self.recovery_cap);
             (r * e.value, r * e.drho)
         } else {
             (0.0, 0.0)
@@ -396,9 +481,45 @@ impl TrancheBounds {
     /// # Ok::<(), skewbook::Error>(())
     /// ```
     pub fn expectation(&self, h: &Horizon, rho: f64, method: Method) -> TrancheExpectation {
+        match method {
+            Method::ClosedForm => self.closed_form(h, &Correlation::new(rho)),
+            Method::Quadrature => self.combine(
+                self.lower.expectation(h, rho, method),
+                self.upper.expectation(h, rho, method),
+            ),
+        }
+    }
+
+    /// [`TrancheBounds::expectation`] by the closed form at a precomputed
+    /// [`Correlation`].
+    ///
+    /// # Formula
+    ///
+    /// See [`TrancheBounds::expectation`].
+    ///
+    /// # References
+    ///
+    /// Vasicek (2002), "Loan portfolio value", Risk 15(12).
+    ///
+    /// # Example
+    ///
+    /// ```
+    /// use skewbook::loss::{Correlation, Horizon, TrancheBounds};
+    /// let h = Horizon::new(0.05)?;
+    /// let whole = TrancheBounds::new(0.4, 0.0, 1.0)?.closed_form(&h, &Correlation::new(0.2));
+    /// assert!((whole.loss - 0.03).abs() < 1e-16);
+    /// # Ok::<(), skewbook::Error>(())
+    /// ```
+    #[inline]
+    pub fn closed_form(&self, h: &Horizon, corr: &Correlation) -> TrancheExpectation {
+        self.combine(
+            self.lower.closed_form(h, corr),
+            self.upper.closed_form(h, corr),
+        )
+    }
+
+    fn combine(&self, lo: BaseExpectation, hi: BaseExpectation) -> TrancheExpectation {
         let w = self.width();
-        let lo = self.lower.expectation(h, rho, method);
-        let hi = self.upper.expectation(h, rho, method);
         TrancheExpectation {
             loss: ((hi.loss - lo.loss) / w).clamp(0.0, 1.0),
             outstanding: ((hi.outstanding - lo.outstanding) / w).clamp(0.0, 1.0),

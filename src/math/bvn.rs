@@ -18,11 +18,27 @@
 //!   subtracted in closed form (a short series) and the remainder on 20
 //!   Gauss-Legendre points; `|r| = 1` exactly is the degenerate limit.
 //!
-//! Accuracy: about 5e-16 absolute (Genz reports this over the whole plane);
-//! against 40-digit mpmath values on the fixture grid (tails to -8, `r` to
-//! +/-0.9999) this implementation stays below 1e-15 absolute. Relative
-//! accuracy in the lower tail is close to full for `r >= 0`; for `r < 0`
-//! the value comes out of a cancellation and only the absolute bound holds.
+//! # Accuracy: absolute, not relative
+//!
+//! Genz reports about 5e-16 absolute over the whole plane. Against 40-digit
+//! mpmath on the fixture grid (1629 points, `h, k` down to -8, `r` to
+//! +/-0.9999) the largest absolute error here is 2.2e-16. Relative accuracy
+//! in the lower tail is not guaranteed: for `r >= 0` it is about 1e-13 on
+//! values above 1e-6, 1e-11 above 1e-15, and degrades further below (6e-6
+//! at `Phi2(-8, -8; 0.29) = 1.2e-24`); for `r < 0` the value is a
+//! difference and only the absolute bound holds.
+//!
+//! # One correlation, many bounds
+//!
+//! [`Bvn::new`] does the work that depends on `r` only (the node angles and
+//! their sines, or the series nodes); [`Bvn::cdf`] is then one exponential
+//! per node. [`bvn_cdf`] builds and evaluates in one go.
+//!
+//! # The normal CDF used
+//!
+//! `statrs` 0.18's `erfc` is off by up to 1e-10 relative, which would cap
+//! this function at ~1e-11; [`norm_cdf`] uses the Sun/FreeBSD `erfc`
+//! (below one ulp) instead.
 //!
 //! # References
 //!
@@ -138,22 +154,237 @@ const W20: [f64; 10] = [
 /// assert_eq!(bvn_cdf(f64::INFINITY, f64::INFINITY, -0.3), 1.0);
 /// assert_eq!(bvn_cdf(f64::NEG_INFINITY, 0.7, 0.9), 0.0);
 /// ```
+///
+/// Builds a [`Bvn`] for `r` and evaluates it once; when many `(h, k)` share
+/// one `r` (tranche pricing at one correlation), build the [`Bvn`] once.
 #[inline]
 pub fn bvn_cdf(h: f64, k: f64, r: f64) -> f64 {
-    if h.is_nan() || k.is_nan() || r.is_nan() {
+    if r.is_nan() {
         return f64::NAN;
     }
-    let r = r.clamp(-1.0, 1.0);
-    if h <= -FAR || k <= -FAR {
-        return 0.0;
+    Bvn::new(r).cdf(h, k)
+}
+
+/// Which of Genz's forms applies at a correlation.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum Form {
+    /// `r = 0`: `N(h) N(k)`.
+    Independent,
+    /// `0 < |r| < 0.925`: the angle form of Plackett's identity.
+    Angle,
+    /// `0.925 <= |r| < 1`: Drezner-Wesolowsky in `sqrt(1 - r^2)`.
+    Series,
+    /// `|r| = 1`.
+    Degenerate,
+}
+
+/// The bivariate normal CDF at one fixed correlation `r`, with everything
+/// that depends on `r` alone (Gauss-Legendre nodes mapped to the
+/// integration variable, their sines, square roots and reciprocals)
+/// computed once in [`Bvn::new`].
+///
+/// [`Bvn::cdf`] then costs one exponential per node (6, 12 or 20 for
+/// `|r| < 0.925`, two per node above) and two normal CDFs.
+///
+/// # Example
+///
+/// ```
+/// use skewbook::math::bvn::{bvn_cdf, Bvn};
+/// let at = Bvn::new(-0.6);
+/// assert_eq!(at.cdf(-1.0, 0.5), bvn_cdf(-1.0, 0.5, -0.6));
+/// ```
+#[derive(Debug, Clone)]
+pub struct Bvn {
+    r: f64,
+    form: Form,
+    len: usize,
+    /// Angle: sin of the node angle. Series: `1 / x_j^2` of the node.
+    p: [f64; 20],
+    /// Angle: `1 / (1 - sin^2)`. Series: `x_j^2`.
+    q: [f64; 20],
+    /// Series only: `(1 - r_j) / (2 (1 + r_j))`, `r_j = sqrt(1 - x_j^2)`.
+    t: [f64; 20],
+    /// Series only: `1 / r_j`.
+    u: [f64; 20],
+    /// Weights, scaled for the form.
+    w: [f64; 20],
+    /// Angle: `asin(r) / (4 pi)`. Series: `1 - r^2`.
+    scale: f64,
+}
+
+impl Bvn {
+    /// Precompute Genz's rule for correlation `r` (clamped to `[-1, 1]`;
+    /// NaN is treated as 0 — use [`bvn_cdf`] to propagate NaN).
+    ///
+    /// # Example
+    ///
+    /// ```
+    /// use skewbook::math::bvn::Bvn;
+    /// assert_eq!(Bvn::new(0.3).correlation(), 0.3);
+    /// ```
+    pub fn new(r: f64) -> Bvn {
+        let r = if r.is_nan() { 0.0 } else { r.clamp(-1.0, 1.0) };
+        let mut out = Bvn {
+            r,
+            form: Form::Independent,
+            len: 0,
+            p: [0.0; 20],
+            q: [0.0; 20],
+            t: [0.0; 20],
+            u: [0.0; 20],
+            w: [0.0; 20],
+            scale: 0.0,
+        };
+        let ar = r.abs();
+        if r == 0.0 {
+            return out;
+        }
+        if ar >= 1.0 {
+            out.form = Form::Degenerate;
+            return out;
+        }
+        let (x, w): (&[f64], &[f64]) = if ar < 0.3 {
+            (&X6, &W6)
+        } else if ar < 0.75 {
+            (&X12, &W12)
+        } else {
+            (&X20, &W20)
+        };
+        out.len = 2 * x.len();
+        if ar < 0.925 {
+            out.form = Form::Angle;
+            // nodes t = theta (1 -/+ x_i) on [0, asin r], theta = asin(r) / 2:
+            // sin(theta (1 -/+ x)) = sin(theta) cos(theta x) -/+ cos(theta) sin(theta x)
+            let asr = r.asin();
+            let theta = 0.5 * asr;
+            let (st, ct) = theta.sin_cos();
+            for (i, (&xi, &wi)) in x.iter().zip(w).enumerate() {
+                let (sx, cx) = (theta * xi).sin_cos();
+                for (j, sn) in [(2 * i, st * cx - ct * sx), (2 * i + 1, st * cx + ct * sx)] {
+                    out.p[j] = sn;
+                    out.q[j] = 1.0 / (1.0 - sn * sn);
+                    out.w[j] = wi;
+                }
+            }
+            out.scale = asr / (2.0 * TWO_PI);
+        } else {
+            out.form = Form::Series;
+            let a_s = (1.0 - r) * (1.0 + r);
+            let half_a = 0.5 * a_s.sqrt();
+            for (i, (&xi, &wi)) in x.iter().zip(w).enumerate() {
+                for (j, node) in [(2 * i, 1.0 - xi), (2 * i + 1, 1.0 + xi)] {
+                    let xs = a_s * node * node / 4.0;
+                    let rs = (1.0 - xs).sqrt();
+                    out.p[j] = 1.0 / xs;
+                    out.q[j] = xs;
+                    out.t[j] = (1.0 - rs) / (2.0 * (1.0 + rs));
+                    out.u[j] = 1.0 / rs;
+                    out.w[j] = half_a * wi;
+                }
+            }
+            out.scale = a_s;
+        }
+        out
     }
-    if h >= FAR {
-        return if k >= FAR { 1.0 } else { norm_cdf(k) };
+
+    /// The correlation this rule is for (after clamping).
+    pub fn correlation(&self) -> f64 {
+        self.r
     }
-    if k >= FAR {
-        return norm_cdf(h);
+
+    /// `Phi2(h, k; r)` at this rule's `r`; same contract as [`bvn_cdf`].
+    ///
+    /// # Formula
+    ///
+    /// See [`bvn_cdf`].
+    ///
+    /// # References
+    ///
+    /// A. Genz (2004), Statistics and Computing 14.
+    ///
+    /// # Example
+    ///
+    /// ```
+    /// use skewbook::math::bvn::Bvn;
+    /// // Sheppard: Phi2(0, 0; 0.5) = 1/4 + asin(0.5) / (2 pi) = 1/3
+    /// assert!((Bvn::new(0.5).cdf(0.0, 0.0) - 1.0 / 3.0).abs() < 1e-15);
+    /// ```
+    #[inline]
+    pub fn cdf(&self, h: f64, k: f64) -> f64 {
+        if h.is_nan() || k.is_nan() {
+            return f64::NAN;
+        }
+        if h <= -FAR || k <= -FAR {
+            return 0.0;
+        }
+        if h >= FAR {
+            return if k >= FAR { 1.0 } else { norm_cdf(k) };
+        }
+        if k >= FAR {
+            return norm_cdf(h);
+        }
+        self.upper(-h, -k).clamp(0.0, 1.0)
     }
-    upper(-h, -k, r).clamp(0.0, 1.0)
+
+    /// `P(X > h, Y > k)` for `|h|, |k| < FAR`; Genz's BVND.
+    fn upper(&self, h: f64, k: f64) -> f64 {
+        let hk = h * k;
+        match self.form {
+            Form::Independent => return norm_cdf(-h) * norm_cdf(-k),
+            Form::Angle => {
+                let hs = 0.5 * (h * h + k * k);
+                let mut sum = 0.0;
+                for j in 0..self.len {
+                    sum += self.w[j] * ((self.p[j] * hk - hs) * self.q[j]).exp();
+                }
+                return sum * self.scale + norm_cdf(-h) * norm_cdf(-k);
+            }
+            Form::Series | Form::Degenerate => {}
+        }
+        // |r| >= 0.925: reflect r < 0 onto r > 0 through k -> -k.
+        let (k, hk) = if self.r < 0.0 { (-k, -hk) } else { (k, hk) };
+        let mut bvn = 0.0;
+        if self.form == Form::Series {
+            let a_s = self.scale;
+            let a = a_s.sqrt();
+            let bs = (h - k) * (h - k);
+            let c = (4.0 - hk) / 8.0;
+            let d = (12.0 - hk) / 16.0;
+            bvn = a
+                * (-0.5 * (bs / a_s + hk)).exp()
+                * (1.0 - c * (bs - a_s) * (1.0 - d * bs / 5.0) / 3.0 + c * d * a_s * a_s / 5.0);
+            if hk > -160.0 {
+                let b = bs.sqrt();
+                bvn -= (-0.5 * hk).exp()
+                    * TWO_PI.sqrt()
+                    * norm_cdf(-b / a)
+                    * b
+                    * (1.0 - c * bs * (1.0 - d * bs / 5.0) / 3.0);
+            }
+            // Both halves of the rule in Genz's second form:
+            // exp(-(bs/xs + hk)/2) (exp(-hk (1-rs)/(2(1+rs))) / rs - (1 + c xs (1 + d xs)))
+            for j in 0..self.len {
+                let xs = self.q[j];
+                bvn += self.w[j]
+                    * (-0.5 * (bs * self.p[j] + hk)).exp()
+                    * ((-hk * self.t[j]).exp() * self.u[j] - (1.0 + c * xs * (1.0 + d * xs)));
+            }
+            bvn = -bvn / TWO_PI;
+        }
+        if self.r > 0.0 {
+            bvn + norm_cdf(-h.max(k))
+        } else {
+            let mut bvn = -bvn;
+            if k > h {
+                bvn += if h < 0.0 {
+                    norm_cdf(k) - norm_cdf(h)
+                } else {
+                    norm_cdf(-h) - norm_cdf(-k)
+                };
+            }
+            bvn
+        }
+    }
 }
 
 /// Standard normal CDF `N(x)` at full double precision (below 1 ulp of
@@ -224,84 +455,6 @@ pub fn bvn_pdf(h: f64, k: f64, r: f64) -> f64 {
     }
     let q = (h * h - 2.0 * r * h * k + k * k) / (2.0 * one_minus_r2);
     (-q).exp() / (TWO_PI * one_minus_r2.sqrt())
-}
-
-/// `P(X > h, Y > k)` for finite `h`, `k` with `|h|, |k| < FAR`; Genz's BVND.
-fn upper(h: f64, k: f64, r: f64) -> f64 {
-    if r == 0.0 {
-        return norm_cdf(-h) * norm_cdf(-k);
-    }
-    let (x, w): (&[f64], &[f64]) = if r.abs() < 0.3 {
-        (&X6, &W6)
-    } else if r.abs() < 0.75 {
-        (&X12, &W12)
-    } else {
-        (&X20, &W20)
-    };
-    let hk = h * k;
-    if r.abs() < 0.925 {
-        let hs = 0.5 * (h * h + k * k);
-        let asr = r.asin();
-        let mut sum = 0.0;
-        for (&xi, &wi) in x.iter().zip(w) {
-            for node in [1.0 - xi, 1.0 + xi] {
-                let sn = (0.5 * asr * node).sin();
-                sum += wi * ((sn * hk - hs) / (1.0 - sn * sn)).exp();
-            }
-        }
-        return sum * asr / (2.0 * TWO_PI) + norm_cdf(-h) * norm_cdf(-k);
-    }
-    // |r| >= 0.925: reflect r < 0 onto r > 0 through k -> -k.
-    let (k, hk) = if r < 0.0 { (-k, -hk) } else { (k, hk) };
-    let mut bvn = 0.0;
-    if r.abs() < 1.0 {
-        let a_s = (1.0 - r) * (1.0 + r);
-        let mut a = a_s.sqrt();
-        let bs = (h - k) * (h - k);
-        let c = (4.0 - hk) / 8.0;
-        let d = (12.0 - hk) / 16.0;
-        bvn = a
-            * (-0.5 * (bs / a_s + hk)).exp()
-            * (1.0 - c * (bs - a_s) * (1.0 - d * bs / 5.0) / 3.0 + c * d * a_s * a_s / 5.0);
-        if hk > -160.0 {
-            let b = bs.sqrt();
-            bvn -= (-0.5 * hk).exp()
-                * TWO_PI.sqrt()
-                * norm_cdf(-b / a)
-                * b
-                * (1.0 - c * bs * (1.0 - d * bs / 5.0) / 3.0);
-        }
-        a *= 0.5;
-        for (&xi, &wi) in x.iter().zip(w) {
-            let xs = (a * (1.0 + xi)) * (a * (1.0 + xi));
-            let rs = (1.0 - xs).sqrt();
-            bvn += a
-                * wi
-                * ((-bs / (2.0 * xs) - hk / (1.0 + rs)).exp() / rs
-                    - (-0.5 * (bs / xs + hk)).exp() * (1.0 + c * xs * (1.0 + d * xs)));
-            let xs = a_s * (1.0 - xi) * (1.0 - xi) / 4.0;
-            let rs = (1.0 - xs).sqrt();
-            bvn += a
-                * wi
-                * (-0.5 * (bs / xs + hk)).exp()
-                * ((-hk * (1.0 - rs) / (2.0 * (1.0 + rs))).exp() / rs
-                    - (1.0 + c * xs * (1.0 + d * xs)));
-        }
-        bvn = -bvn / TWO_PI;
-    }
-    if r > 0.0 {
-        bvn + norm_cdf(-h.max(k))
-    } else {
-        let mut bvn = -bvn;
-        if k > h {
-            bvn += if h < 0.0 {
-                norm_cdf(k) - norm_cdf(h)
-            } else {
-                norm_cdf(-h) - norm_cdf(-k)
-            };
-        }
-        bvn
-    }
 }
 
 #[cfg(test)]
