@@ -13,7 +13,7 @@
 
 use crate::curve::{DiscountCurve, HazardCurve};
 use crate::dates::Schedule;
-use crate::loss::{BaseTranche, Horizon, Method};
+use crate::loss::{BaseExpectation, BaseTranche, Correlation, Horizon, Method};
 use crate::math::normal::inv_cdf;
 use chrono::NaiveDate;
 
@@ -116,10 +116,23 @@ impl TrancheSchedule {
         let Ok(base) = BaseTranche::new(recovery, detach) else {
             return BaseLegs::default();
         };
+        match method {
+            // The closed form's fast path: the bivariate normal's rule for
+            // this correlation is built once for every date.
+            Method::ClosedForm => {
+                let corr = Correlation::new(rho);
+                self.sum_legs(|h| base.closed_form(h, &corr))
+            }
+            Method::Quadrature => self.sum_legs(|h| base.expectation(h, rho, method)),
+        }
+    }
+
+    /// Sums the legs over the schedule from the base expectation at each date.
+    fn sum_legs(&self, at: impl Fn(&Horizon) -> BaseExpectation) -> BaseLegs {
         let mut legs = BaseLegs::default();
-        let mut prev = base.expectation(&self.horizons[0], rho, method);
+        let mut prev = at(&self.horizons[0]);
         for (i, h) in self.horizons[1..].iter().enumerate() {
-            let cur = base.expectation(h, rho, method);
+            let cur = at(h);
             let df = self.df_pay[i];
             let w = self.half_accrual_df[i];
             legs.protection += df * (cur.loss - prev.loss);
