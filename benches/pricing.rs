@@ -77,6 +77,16 @@ fn pricing(c: &mut Criterion) {
             r
         })
     });
+    // The independent Python implementation's `ig_pool` scenario (eight
+    // tranches over two maturities), for the speed comparison with it.
+    let ig = read_snapshot("tests/fixtures/scenarios/ig_pool.csv").expect("scenario");
+    c.bench_function("implied/snapshot/ig_pool_scenario", |b| {
+        b.iter(|| {
+            let r = skewbook::report::implied::build(black_box(&ig), &opts).expect("implied");
+            assert_eq!(r.dates[0].tranches.len(), 8);
+            r
+        })
+    });
     let history = read_snapshot(HISTORY).expect("bundled history");
     let mut group = c.benchmark_group("implied/history");
     group.sample_size(20);
