@@ -22,8 +22,8 @@ date,instrument,maturity,attach_pct,detach_pct,quote_kind,quote,coupon_bp
     for t in &report.dates[0].tranches {
         println!(
             "{}-{}%: compound {:?}, base {:?}, repricing error {:?}",
-            t.attach_pct,
-            t.detach_pct,
+            t.tranche.attach_pct,
+            t.tranche.detach_pct,
             t.compound_correlation,
             t.base_correlation,
             t.base_reprice_error

@@ -38,8 +38,8 @@
 //! below the top, no base correlation.
 
 use super::curve::{quote_label, CurvePillar};
-use super::curves_for_all_dates;
 use super::price::bounds_label;
+use super::{curves_for_all_dates, QuotedTranche};
 use crate::curve::MarketOptions;
 use crate::error::Result;
 use crate::market::{tiles_from_zero, Snapshot, TrancheQuote};
@@ -52,18 +52,9 @@ use serde::Serialize;
 /// One tranche's implied correlations.
 #[derive(Debug, Clone, Serialize, PartialEq)]
 pub struct ImpliedTranche {
-    /// Maturity, ISO 8601.
-    pub maturity: String,
-    /// Attachment, percent.
-    pub attach_pct: f64,
-    /// Detachment, percent.
-    pub detach_pct: f64,
-    /// `spread_bp` or `upfront_pct`.
-    pub quote_kind: &'static str,
-    /// The quote in its file unit.
-    pub quote: f64,
-    /// Coupon of an upfront quote, bp.
-    pub coupon_bp: Option<f64>,
+    /// Which tranche and its quote.
+    #[serde(flatten)]
+    pub tranche: QuotedTranche,
     /// Every compound correlation, ascending.
     pub compound_correlation: Vec<f64>,
     /// Lowest and highest model quote over the search range, file unit.
@@ -234,12 +225,7 @@ pub fn implied_for_maturity(
             ));
         }
         out.push(ImpliedTranche {
-            maturity: t.maturity.to_string(),
-            attach_pct: pct(t.attach),
-            detach_pct: pct(t.detach),
-            quote_kind: t.quote.kind_name(),
-            quote: t.quote.in_file_unit(),
-            coupon_bp: t.quote.coupon_bp(),
+            tranche: QuotedTranche::from(*t),
             compound_correlation: comp.roots.iter().map(|r| r.value).collect(),
             compound_range: [comp.attainable.0, comp.attainable.1],
             base_correlation: base,
@@ -322,10 +308,10 @@ impl Report for ImpliedReport {
             out.extend(curve.sections());
             let mut i = 0;
             while i < d.tranches.len() {
-                let m = d.tranches[i].maturity.clone();
+                let m = d.tranches[i].tranche.maturity.clone();
                 let group: Vec<&ImpliedTranche> = d.tranches[i..]
                     .iter()
-                    .take_while(|t| t.maturity == m)
+                    .take_while(|t| t.tranche.maturity == m)
                     .collect();
                 i += group.len();
                 let mut t = Table::new(&[
@@ -340,8 +326,8 @@ impl Report for ImpliedReport {
                 .with_title(format!("{}  tranches maturing {m}", d.date));
                 for r in group {
                     t.push(vec![
-                        bounds_label(r.attach_pct, r.detach_pct),
-                        quote_label(r.quote_kind, r.quote, r.coupon_bp),
+                        bounds_label(r.tranche.attach_pct, r.tranche.detach_pct),
+                        quote_label(r.tranche.quote_kind, r.tranche.quote, r.tranche.coupon_bp),
                         pct_list(&r.compound_correlation),
                         fixed_or(r.base_correlation.map(|b| b * 100.0), 2, "-"),
                         fixed_or(r.expected_loss_pct, 2, "-"),
@@ -355,14 +341,17 @@ impl Report for ImpliedReport {
                     if r.compound_correlation.is_empty() {
                         t.notes.extend(wrap(&format!(
                             "{}: no compound correlation; model quotes span {} to {} over rho in [{RHO_MIN}, {RHO_MAX}]",
-                            bounds_label(r.attach_pct, r.detach_pct),
+                            bounds_label(r.tranche.attach_pct, r.tranche.detach_pct),
                             fixed(r.compound_range[0], 4),
                             fixed(r.compound_range[1], 4)
                         ), 79, 4));
                     }
                     if let (Some(n), false) = (&r.base_note, r.flags.contains(&"top_tranche")) {
                         t.notes.extend(wrap(
-                            &format!("{}: {n}", bounds_label(r.attach_pct, r.detach_pct)),
+                            &format!(
+                                "{}: {n}",
+                                bounds_label(r.tranche.attach_pct, r.tranche.detach_pct)
+                            ),
                             79,
                             4,
                         ));
@@ -399,12 +388,12 @@ impl Report for ImpliedReport {
                 t.push(vec![
                     d.date.clone(),
                     csv_num(Some(pct(d.recovery))),
-                    r.maturity.clone(),
-                    csv_num(Some(r.attach_pct)),
-                    csv_num(Some(r.detach_pct)),
-                    r.quote_kind.to_string(),
-                    csv_num(Some(r.quote)),
-                    csv_num(r.coupon_bp),
+                    r.tranche.maturity.clone(),
+                    csv_num(Some(r.tranche.attach_pct)),
+                    csv_num(Some(r.tranche.detach_pct)),
+                    r.tranche.quote_kind.to_string(),
+                    csv_num(Some(r.tranche.quote)),
+                    csv_num(r.tranche.coupon_bp),
                     csv_num(r.compound_correlation.first().copied()),
                     csv_num(r.compound_correlation.get(1).copied()),
                     csv_num(Some(r.compound_range[0])),

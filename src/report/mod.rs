@@ -13,7 +13,9 @@ pub mod realworld;
 
 use crate::curve::{MarketOptions, PoolCurves};
 use crate::error::{Error, Result};
-use crate::market::{MarketDate, Snapshot};
+use crate::market::{MarketDate, Snapshot, TrancheQuote};
+use crate::output::pct;
+use serde::Serialize;
 
 /// Builds the curves of every date of a snapshot, collecting every date's
 /// error into one [`Error`] so a history shows all its bad dates at once.
@@ -38,5 +40,36 @@ pub fn curves_for_all_dates(
     match failure {
         Some(e) => Err(e),
         None => Ok(out),
+    }
+}
+
+/// A quoted tranche as every tranche report shows it: which tranche and
+/// its quote, in file units (flattened into each report's tranche object).
+#[derive(Debug, Clone, Serialize, PartialEq)]
+pub struct QuotedTranche {
+    /// Maturity, ISO 8601.
+    pub maturity: String,
+    /// Attachment, percent.
+    pub attach_pct: f64,
+    /// Detachment, percent.
+    pub detach_pct: f64,
+    /// `spread_bp` or `upfront_pct`.
+    pub quote_kind: &'static str,
+    /// The quote in its file unit.
+    pub quote: f64,
+    /// Coupon of an upfront quote, bp; null for a spread quote.
+    pub coupon_bp: Option<f64>,
+}
+
+impl From<&TrancheQuote> for QuotedTranche {
+    fn from(t: &TrancheQuote) -> Self {
+        QuotedTranche {
+            maturity: t.maturity.to_string(),
+            attach_pct: pct(t.attach),
+            detach_pct: pct(t.detach),
+            quote_kind: t.quote.kind_name(),
+            quote: t.quote.in_file_unit(),
+            coupon_bp: t.quote.coupon_bp(),
+        }
     }
 }

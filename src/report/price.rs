@@ -17,7 +17,7 @@
 //!   } ] }
 //! ```
 
-use super::curves_for_all_dates;
+use super::{curves_for_all_dates, QuotedTranche};
 use crate::curve::MarketOptions;
 use crate::error::{Error, ErrorKind, Result};
 use crate::market::{Snapshot, TrancheQuote};
@@ -28,18 +28,9 @@ use serde::Serialize;
 /// One tranche priced at a flat correlation.
 #[derive(Debug, Clone, Serialize, PartialEq)]
 pub struct PricedTranche {
-    /// Maturity, ISO 8601.
-    pub maturity: String,
-    /// Attachment, percent.
-    pub attach_pct: f64,
-    /// Detachment, percent.
-    pub detach_pct: f64,
-    /// `spread_bp` or `upfront_pct`.
-    pub quote_kind: &'static str,
-    /// The quote in its file unit.
-    pub quote: f64,
-    /// Coupon of an upfront quote, bp; null for a spread quote.
-    pub coupon_bp: Option<f64>,
+    /// Which tranche and its quote.
+    #[serde(flatten)]
+    pub tranche: QuotedTranche,
     /// Model upfront at the row's coupon, percent.
     pub model_upfront_pct: f64,
     /// Model par spread with no upfront, bp.
@@ -91,12 +82,7 @@ pub fn price_tranche(
     };
     let legs = v.legs_flat(rho);
     PricedTranche {
-        maturity: t.maturity.to_string(),
-        attach_pct: pct(t.attach),
-        detach_pct: pct(t.detach),
-        quote_kind: t.quote.kind_name(),
-        quote: t.quote.in_file_unit(),
-        coupon_bp: t.quote.coupon_bp(),
+        tranche: QuotedTranche::from(t),
         model_upfront_pct: v.model_upfront(&legs) * 100.0,
         model_spread_bp: v.model_spread(&legs).map(|s| s * 1e4),
         expected_loss_pct: legs.expected_loss * 100.0,
@@ -174,9 +160,13 @@ impl Report for PriceReport {
                 ));
                 for p in &d.tranches {
                     t.push(vec![
-                        p.maturity.clone(),
-                        bounds_label(p.attach_pct, p.detach_pct),
-                        super::curve::quote_label(p.quote_kind, p.quote, p.coupon_bp),
+                        p.tranche.maturity.clone(),
+                        bounds_label(p.tranche.attach_pct, p.tranche.detach_pct),
+                        super::curve::quote_label(
+                            p.tranche.quote_kind,
+                            p.tranche.quote,
+                            p.tranche.coupon_bp,
+                        ),
                         fixed(p.model_upfront_pct, 4),
                         fixed_or(p.model_spread_bp, 2, "-"),
                         fixed(p.expected_loss_pct, 3),
@@ -212,12 +202,12 @@ impl Report for PriceReport {
                     d.date.clone(),
                     csv_num(Some(pct(d.recovery))),
                     csv_num(Some(d.correlation)),
-                    p.maturity.clone(),
-                    csv_num(Some(p.attach_pct)),
-                    csv_num(Some(p.detach_pct)),
-                    p.quote_kind.to_string(),
-                    csv_num(Some(p.quote)),
-                    csv_num(p.coupon_bp),
+                    p.tranche.maturity.clone(),
+                    csv_num(Some(p.tranche.attach_pct)),
+                    csv_num(Some(p.tranche.detach_pct)),
+                    p.tranche.quote_kind.to_string(),
+                    csv_num(Some(p.tranche.quote)),
+                    csv_num(p.tranche.coupon_bp),
                     csv_num(Some(p.model_upfront_pct)),
                     csv_num(p.model_spread_bp),
                     csv_num(Some(p.expected_loss_pct)),

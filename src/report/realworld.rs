@@ -167,9 +167,9 @@ pub fn add_risk_neutral(
         .tranches
         .iter()
         .map(|t| RiskNeutralTranche {
-            maturity: t.maturity.clone(),
-            attach_pct: t.attach_pct,
-            detach_pct: t.detach_pct,
+            maturity: t.tranche.maturity.clone(),
+            attach_pct: t.tranche.attach_pct,
+            detach_pct: t.tranche.detach_pct,
             compound_correlation: t.compound_correlation.clone(),
             base_correlation: t.base_correlation,
         })
