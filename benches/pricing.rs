@@ -77,6 +77,14 @@ fn pricing(c: &mut Criterion) {
             r
         })
     });
+    let lhy = read_snapshot("market-samples/lhy-2026-06-18.csv").expect("bundled snapshot");
+    c.bench_function("implied/snapshot/lhy_5_tranches", |b| {
+        b.iter(|| {
+            let r = skewbook::report::implied::build(black_box(&lhy), &opts).expect("implied");
+            assert!(!r.any_unsolved());
+            r
+        })
+    });
     // The independent Python implementation's `ig_pool` scenario (eight
     // tranches over two maturities), for the speed comparison with it.
     let ig = read_snapshot("tests/fixtures/scenarios/ig_pool.csv").expect("scenario");
