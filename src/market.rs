@@ -40,15 +40,20 @@ impl Quote {
         }
     }
 
-    /// The quote in its file unit: bp for spreads, percent for upfronts,
-    /// rounded to 1e-10 of that unit so that 13.9527 read from a file (and
-    /// held as 0.139527) prints as 13.9527 again.
-    pub fn in_file_unit(&self) -> f64 {
-        let x = match *self {
+    /// The quote in its file unit (bp for spreads, percent for upfronts),
+    /// unrounded: what solvers aim at and repricing errors are measured from.
+    pub fn exact_in_file_unit(&self) -> f64 {
+        match *self {
             Quote::Spread(s) => s * 1e4,
             Quote::Upfront { upfront, .. } => upfront * 100.0,
-        };
-        (x * 1e10).round() / 1e10
+        }
+    }
+
+    /// The quote in its file unit for display, rounded to 1e-10 of that
+    /// unit so that 13.9527 read from a file (and held as 0.139527) prints
+    /// as 13.9527 again.
+    pub fn in_file_unit(&self) -> f64 {
+        (self.exact_in_file_unit() * 1e10).round() / 1e10
     }
 
     /// The coupon in bp, `None` for a par-spread quote.

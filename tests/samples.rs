@@ -281,3 +281,26 @@ fn tables_fit_80_columns() {
         }
     }
 }
+
+/// The whole pool [0, 100%] quoted as a tranche: no correlation moves it,
+/// so it has neither compound nor base correlation, is not counted as
+/// unsolved, and its expected loss is the pool's (1 - R) PD (law of the model).
+#[test]
+fn whole_pool_tranche_has_no_correlation_and_is_not_unsolved() {
+    let p = write_temp(
+        "whole",
+        "date,instrument,maturity,attach_pct,detach_pct,quote_kind,quote,coupon_bp\n\
+         2026-06-18,index,2031-06-20,,,spread_bp,60,\n\
+         2026-06-18,tranche,2031-06-20,0,100,spread_bp,61,\n",
+    );
+    let (code, out, err) = skewbook(&["implied", &p, "--format", "json"]);
+    assert_eq!(code, 0, "{err}");
+    let v: serde_json::Value = serde_json::from_str(&out).unwrap();
+    let t = &v[0]["tranches"][0];
+    assert!(t["compound_correlation"].as_array().unwrap().is_empty());
+    assert!(t["base_correlation"].is_null());
+    assert_eq!(t["flags"][0], "no_correlation_dependence");
+    let pd = v[0]["index"][0]["default_probability"].as_f64().unwrap();
+    let el = t["expected_loss_pct"].as_f64().unwrap();
+    assert!((el - 60.0 * pd).abs() < 1e-10, "{el} vs {}", 60.0 * pd);
+}

@@ -102,6 +102,34 @@ pub fn model_quote(legs: IndexLegs, quote: Quote, df_settlement: f64) -> f64 {
     }
 }
 
+/// The maximum of a unimodal `f` on [a, b] by golden-section search (80
+/// steps shrink the bracket by 1e-17 of its width).
+fn maximise(f: &impl Fn(f64) -> f64, mut a: f64, mut b: f64) -> (f64, f64) {
+    let g = (5f64.sqrt() - 1.0) / 2.0;
+    let (mut x1, mut x2) = (b - g * (b - a), a + g * (b - a));
+    let (mut f1, mut f2) = (f(x1), f(x2));
+    for _ in 0..80 {
+        if f1 < f2 {
+            a = x1;
+            x1 = x2;
+            f1 = f2;
+            x2 = a + g * (b - a);
+            f2 = f(x2);
+        } else {
+            b = x2;
+            x2 = x1;
+            f2 = f1;
+            x1 = b - g * (b - a);
+            f1 = f(x1);
+        }
+    }
+    if f1 > f2 {
+        (x1, f1)
+    } else {
+        (x2, f2)
+    }
+}
+
 /// Residual tolerance of a pillar solve, in the quote's file unit (bp or
 /// percent): well inside the 1e-8 the contract asks for.
 pub const REPRICE_TOLERANCE: f64 = 1e-11;
@@ -127,7 +155,7 @@ pub fn bootstrap(
         let schedule = Schedule::new(trade, q.maturity);
         let knot = schedule.protection_end_time();
         let df_settle = discount.df(schedule.settlement_time());
-        let target = q.quote.in_file_unit();
+        let target = q.quote.exact_in_file_unit();
         // Periods ending by the previous knot do not depend on this pillar's
         // hazard: price them once.
         let previous = knots.last().copied().unwrap_or(0.0);
@@ -169,29 +197,54 @@ pub fn bootstrap(
         };
         let g0 = gap(0.0);
         if g0 > REPRICE_TOLERANCE {
+            let why = if knots.is_empty() {
+                "a pool with no default risk already pays more than the quote"
+            } else {
+                "the earlier pillars already imply more default risk"
+            };
             return Err(fail(format!(
-                "even a zero hazard rate on this pillar gives {:.6} (the earlier pillars already imply more default risk)",
+                "even a zero hazard rate on this pillar gives {:.6} ({why})",
                 g0 + target
             )));
         }
-        let mut hi = 0.05;
+        // Bracket on a geometric grid of hazard rates. The model quote rises
+        // with the hazard until, at very large hazards, most defaults fall
+        // before step-in and the protection bought shrinks again; so when no
+        // grid point reaches the quote, look for the maximum in between.
+        let (mut lo, mut hi) = (0.0, 0.05);
         let mut ghi = gap(hi);
+        let mut best = (0.0, g0);
         while ghi < 0.0 && hi < 1e3 {
+            if ghi > best.1 {
+                best = (hi, ghi);
+            }
+            lo = hi;
             hi *= 4.0;
             ghi = gap(hi);
         }
         if ghi < 0.0 {
-            return Err(fail(format!(
-                "the largest attainable value is about {:.6} (hazard rate {hi})",
-                ghi + target
-            )));
+            let (a, b) = if best.0 == 0.0 {
+                (0.0, 0.05)
+            } else {
+                (best.0 / 4.0, best.0 * 4.0)
+            };
+            let (peak, gpeak) = maximise(&gap, a, b);
+            if gpeak < 0.0 {
+                return Err(fail(format!(
+                    "the largest attainable value is {:.6}, at a hazard rate near {peak:.4}",
+                    gpeak + target
+                )));
+            }
+            // The rising branch: every grid point below the peak is below the quote.
+            lo = if best.0 == 0.0 { 0.0 } else { best.0 / 4.0 }.min(peak);
+            hi = peak;
         }
         let tol = Tolerance {
             residual: REPRICE_TOLERANCE,
             width: 1e-16,
             max_iterations: 200,
         };
-        let sol = brent(gap, 0.0, hi, tol).map_err(|e| fail(format!("the solver stopped: {e}")))?;
+        let sol = brent(gap, lo, hi, tol).map_err(|e| fail(format!("the solver stopped: {e}")))?;
         let h = sol.value.max(0.0);
         knots.push(knot);
         hazards.push(h);

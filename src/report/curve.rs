@@ -64,7 +64,7 @@ impl From<&Pillar> for CurvePillar {
             default_probability: p.default_probability,
             annuity: p.annuity,
             repriced_quote: p.repriced,
-            reprice_error: p.repriced - quote,
+            reprice_error: p.repriced - p.quote.exact_in_file_unit(),
         }
     }
 }

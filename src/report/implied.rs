@@ -32,7 +32,11 @@
 //! - `bounds_do_not_tile`: the maturity's tranches do not tile from 0;
 //! - `top_tranche`: the tranche ends at 100%, and [0, 100%] does not depend
 //!   on correlation, so it has no base correlation; its repricing uses the
-//!   base correlation at its attachment.
+//!   base correlation at its attachment;
+//! - `no_correlation_dependence`: the tranche is [0, 100%], the whole pool:
+//!   it has neither compound nor base correlation (not counted as unsolved);
+//!   `compound_range` is its one model quote and `base_reprice_error` the
+//!   gap between that and the quote.
 //!
 //! A tranche is *unsolved* (exit status 1) when it has no compound root or,
 //! below the top, no base correlation.
@@ -74,6 +78,9 @@ pub struct ImpliedTranche {
 impl ImpliedTranche {
     /// Whether this quote has a solution missing (drives exit status 1).
     pub fn unsolved(&self) -> bool {
+        if self.flags.contains(&"no_correlation_dependence") {
+            return false;
+        }
         self.compound_correlation.is_empty()
             || (self.base_correlation.is_none() && !self.flags.contains(&"top_tranche"))
     }
@@ -156,6 +163,22 @@ pub fn implied_for_maturity(
             quote: t.quote,
         };
         let mut flags = Vec::new();
+        if t.attach <= 0.0 && is_top(t) {
+            // [0, 100%] is the whole pool: no correlation moves it.
+            let legs = v.legs_flat(0.5);
+            let q = v.model_quote(&legs);
+            out.push(ImpliedTranche {
+                tranche: QuotedTranche::from(*t),
+                compound_correlation: Vec::new(),
+                compound_range: q.map_or([0.0, 0.0], |q| [q, q]),
+                base_correlation: None,
+                base_note: Some("[0, 100%] does not depend on correlation".to_string()),
+                base_reprice_error: q.map(|q| q - t.quote.exact_in_file_unit()),
+                expected_loss_pct: Some(legs.expected_loss * 100.0),
+                flags: vec!["no_correlation_dependence"],
+            });
+            continue;
+        }
         let (lower_scan, upper_scan) = (scan_of(t.attach), scan_of(t.detach));
         let flat: Vec<_> = lower_scan
             .iter()
@@ -175,7 +198,9 @@ pub fn implied_for_maturity(
         let (mut base, mut note, mut reprice, mut el) = (None, None, None, None);
         let reprice_at = |rho_a: f64, rho_d: f64| {
             let legs = v.legs(rho_a, rho_d);
-            let err = v.model_quote(&legs).map(|q| q - t.quote.in_file_unit());
+            let err = v
+                .model_quote(&legs)
+                .map(|q| q - t.quote.exact_in_file_unit());
             (err, legs.expected_loss * 100.0)
         };
         if !tiles {
@@ -279,6 +304,7 @@ fn short_flag(flag: &str) -> &str {
         "base_chain_broken" => "chain broken",
         "bounds_do_not_tile" => "gaps",
         "top_tranche" => "top",
+        "no_correlation_dependence" => "whole pool",
         other => other,
     }
 }
