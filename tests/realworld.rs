@@ -306,3 +306,65 @@ fn against_a_snapshot_sets_the_market_beside_the_estimates() {
         assert!(no_nan(&out) && out.contains("1.") && out.to_lowercase().contains("ratio"));
     }
 }
+
+/// Usage errors exit 2 and say what was expected: a repeated level, a
+/// Basel maturity outside its one-to-five-year floor and cap (Basel II
+/// para. 320, from memory), a level outside (0, 1).
+#[test]
+fn loss_rejects_levels_and_maturities_it_cannot_honour() {
+    for args in [
+        vec![
+            "loss",
+            "--pd",
+            "0.02",
+            "--rho",
+            "0.1",
+            "--levels",
+            "0.99,0.99",
+        ],
+        vec![
+            "loss",
+            "--pd",
+            "0.02",
+            "--rho",
+            "0.1",
+            "--maturity",
+            "1e308",
+        ],
+        vec!["loss", "--pd", "0.02", "--rho", "0.1", "--maturity", "0.5"],
+        vec!["loss", "--pd", "0.02", "--rho", "0.1", "--levels", "1.5"],
+    ] {
+        let (code, out, err) = skewbook(&args);
+        assert_eq!(code, 2, "{args:?}: {out}");
+        assert!(
+            err.starts_with("error: ") && err.contains("expected"),
+            "{err}"
+        );
+    }
+}
+
+/// A history the binomial mixture cannot be fitted to (single-obligor
+/// cohorts) gives no binomial_ml estimate and says so, never the point
+/// where the optimiser happened to stop.
+#[test]
+fn binomial_ml_reports_no_estimate_when_the_fit_fails() {
+    let dir = std::env::temp_dir().join(format!("skewbook-bml-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let path = dir.join("tiny.csv");
+    std::fs::write(
+        &path,
+        "period,defaults,obligors\n2001,1,1\n2002,0,1\n2003,1,1\n",
+    )
+    .unwrap();
+    let (code, out, _) = skewbook(&["realworld", path.to_str().unwrap(), "--format", "json"]);
+    assert_eq!(code, 0);
+    let v: Value = serde_json::from_str(&out).unwrap();
+    let m = v["methods"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|m| m["method"] == "binomial_ml")
+        .unwrap();
+    assert!(m["pd"].is_null() && m["rho"].is_null(), "{m}");
+    assert!(m["notes"].to_string().contains("no estimate"), "{m}");
+}

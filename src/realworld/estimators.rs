@@ -797,6 +797,9 @@ pub fn binomial_ml(h: &History) -> Estimate {
         );
         return e;
     }
+    /// A failed line search counts as converged only below this gradient
+    /// of the log-likelihood in (G(PD), logit rho).
+    const GRADIENT_TOLERANCE: f64 = 1e-5;
     let coh = cohorts(&counts);
     let f = |th: [f64; 2]| ll_theta(&coh, th);
     // Start: pooled PD and the joint-default rho, kept away from the boundaries.
@@ -842,7 +845,8 @@ pub fn binomial_ml(h: &History) -> Estimate {
             t *= 0.5;
         }
         let Some(next) = accepted else {
-            converged = true;
+            // No step improves the likelihood: a maximum only if it is flat here.
+            converged = g[0].abs().max(g[1].abs()) < GRADIENT_TOLERANCE;
             break;
         };
         let moved = ((next[0] - x[0]).powi(2) + (next[1] - x[1]).powi(2)).sqrt();
@@ -856,11 +860,13 @@ pub fn binomial_ml(h: &History) -> Estimate {
     let c = x[0];
     let (_, g, hm) = grad_hess(&f, x);
     if !converged {
+        // Never report where a failed search happened to stop.
         e.notes.push(format!(
-            "optimiser stopped after {iterations} iterations without meeting its tolerance \
+            "no estimate: the optimiser stopped after {iterations} iterations without converging \
              (gradient {:.2e}, {:.2e})",
             g[0], g[1]
         ));
+        return e;
     }
     e.se_method = Some(SeMethod::ObservedInformation);
     if rho < RHO_BOUNDARY || x[1] <= ETA_MIN + 1.0 {

@@ -76,10 +76,12 @@ pub fn irb_corporate(
             format!("IRB LGD: expected a fraction in (0, 1], found {lgd}"),
         ));
     }
-    if !(maturity.is_finite() && maturity > 0.0) {
+    // Basel II floors the effective maturity at one year and caps it at
+    // five (para. 320; from memory): outside that the formula is not the rule.
+    if !(1.0..=5.0).contains(&maturity) {
         return Err(Error::msg(
             ErrorKind::Usage,
-            format!("IRB maturity: expected a positive number of years, found {maturity}"),
+            format!("IRB maturity: expected years from 1 to 5 (the Basel II floor and cap), found {maturity}"),
         ));
     }
     if let Some(s) = turnover_m {

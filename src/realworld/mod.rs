@@ -9,3 +9,28 @@
 pub mod estimators;
 pub mod irb;
 pub mod vasicek;
+
+use crate::error::{Error, ErrorKind, Result};
+
+/// Checks confidence levels typed on the command line: each in (0, 1), none
+/// repeated (a repeated level would repeat a column).
+///
+/// # Errors
+/// [`ErrorKind::Usage`] naming the offending level.
+pub fn check_levels(levels: &[f64]) -> Result<()> {
+    for (i, &q) in levels.iter().enumerate() {
+        if !(q > 0.0 && q < 1.0) {
+            return Err(Error::msg(
+                ErrorKind::Usage,
+                format!("--levels: expected fractions in (0, 1), found {q}"),
+            ));
+        }
+        if levels[..i].contains(&q) {
+            return Err(Error::msg(
+                ErrorKind::Usage,
+                format!("--levels: expected each level once, found {q} twice"),
+            ));
+        }
+    }
+    Ok(())
+}

@@ -75,6 +75,7 @@ pub fn build_loss(
     maturity: f64,
     turnover_m: Option<f64>,
 ) -> Result<LossReport> {
+    crate::realworld::check_levels(levels)?;
     let v = Vasicek::new(pd, rho, lgd)?;
     let mut out = Vec::new();
     for &q in levels {
@@ -115,10 +116,19 @@ pub fn build_loss(
 }
 
 fn density(x: f64) -> String {
-    if x >= 1e-3 {
+    if (1e-3..1e6).contains(&x) {
         fixed(x, 4)
     } else {
         sci(x, 3)
+    }
+}
+
+/// A level as typed (0.999), or in exponent form when it is tiny.
+fn level_label(q: f64) -> String {
+    if q < 1e-4 {
+        sci(q, 3)
+    } else {
+        format!("{q}")
     }
 }
 
@@ -140,7 +150,7 @@ impl Report for LossReport {
         );
         for l in &self.levels {
             t.push(vec![
-                format!("{}", l.level),
+                level_label(l.level),
                 pct(l.loss_quantile),
                 pct(l.expected_shortfall),
                 pct(l.default_rate_quantile),

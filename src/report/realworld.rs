@@ -296,6 +296,7 @@ pub fn build_realworld(
             format!("LGD: expected a fraction in (0, 1], found {lgd}"),
         ));
     }
+    crate::realworld::check_levels(levels)?;
     let mut methods = Vec::new();
     for e in estimate_all(h, opts)? {
         let loss = match (e.pd, e.rho) {
