@@ -140,6 +140,35 @@ pub struct RiskNeutral {
     pub reading: String,
 }
 
+/// The one-line reading of the ratio ranges (risk-neutral / real-world) of
+/// PD and of base correlation: which side is higher, and what the gap is.
+fn reading(pd: Option<(f64, f64)>, rho: Option<(f64, f64)>) -> String {
+    let Some((a, b)) = pd else {
+        return "No estimator gave both PD and rho, so there is nothing to compare.".to_string();
+    };
+    let range = |lo: f64, hi: f64| format!("{}x to {}x", fixed(lo, 2), fixed(hi, 2));
+    let mut s = format!(
+        "The market's one-year PD is {} the historical estimates",
+        range(a, b)
+    );
+    if let Some((c, e)) = rho {
+        s.push_str(&format!(
+            " and its base correlations {} the historical asset correlation",
+            range(c, e)
+        ));
+    }
+    let above = a > 1.0 && rho.is_none_or(|(c, _)| c > 1.0);
+    let below = b < 1.0 && rho.is_none_or(|(_, e)| e < 1.0);
+    s.push_str(if above {
+        ": the gap is the market's premium for default and correlation risk, plus model and recovery assumptions."
+    } else if below {
+        ": the market prices less risk than the history shows; check that the snapshot and the history are of the same pool and period, and the recovery assumption."
+    } else {
+        ": the two sides straddle each other; the gap mixes risk premia with model and recovery assumptions."
+    });
+    s
+}
+
 /// Sets the market's view of `snapshot`'s last trade date beside the
 /// estimates: one-year and to-maturity PD off the index curve, compound and
 /// base correlations, and the ratios risk-neutral / real-world.
@@ -210,17 +239,7 @@ pub fn add_risk_neutral(
             .flat_map(|r| r.base_correlation_ratio.iter().flatten().copied())
             .collect(),
     );
-    let reading = match (pd_span, rho_span) {
-        (Some((a, b)), Some((c, e))) => format!(
-            "The market's one-year PD is {}x to {}x the historical estimates and its base correlations {}x to {}x the historical asset correlation: the gap is the market's premium for default and correlation risk, plus model and recovery assumptions.",
-            fixed(a, 2), fixed(b, 2), fixed(c, 2), fixed(e, 2)
-        ),
-        (Some((a, b)), None) => format!(
-            "The market's one-year PD is {}x to {}x the historical estimates (no base correlation to compare): the gap is the market's risk premium plus model and recovery assumptions.",
-            fixed(a, 2), fixed(b, 2)
-        ),
-        _ => "No estimator gave both PD and rho, so there is nothing to compare.".to_string(),
-    };
+    let reading = reading(pd_span, rho_span);
     report.risk_neutral = Some(RiskNeutral {
         snapshot: snapshot.path.clone(),
         date: d.date.clone(),
@@ -566,23 +585,36 @@ impl RiskNeutral {
                 fixed_or(t.base_correlation, 4, "-"),
             ]);
         }
-        let mut headers = vec!["method".to_string(), "PD ratio".to_string()];
-        let based: Vec<usize> = (0..self.tranches.len())
-            .filter(|&i| self.tranches[i].base_correlation.is_some())
-            .collect();
-        for &i in &based {
-            headers.push(format!("base {}", fixed(self.tranches[i].detach_pct, 0)));
-        }
-        let mut ratios = Table::new(&headers)
-            .with_title("Risk-neutral / real-world (base correlation over rho at each detachment)");
-        for r in &self.ratios {
-            let mut row = vec![r.method.clone(), fixed(r.pd_ratio, 2)];
+        // One ratio table per tranche maturity, so each fits 80 columns.
+        let mut maturities: Vec<&String> = self.tranches.iter().map(|t| &t.maturity).collect();
+        maturities.dedup();
+        let mut out = vec![side];
+        for m in maturities {
+            let based: Vec<usize> = (0..self.tranches.len())
+                .filter(|&i| {
+                    &self.tranches[i].maturity == m && self.tranches[i].base_correlation.is_some()
+                })
+                .collect();
+            let mut headers = vec!["method".to_string(), "PD ratio".to_string()];
             for &i in &based {
-                row.push(fixed_or(r.base_correlation_ratio[i], 2, "-"));
+                let label = crate::report::price::bounds_label(0.0, self.tranches[i].detach_pct);
+                headers.push(format!("base {}", &label[2..]));
             }
-            ratios.push(row);
+            let mut t = Table::new(&headers).with_title(format!(
+                "Risk-neutral / real-world ratios, tranches maturing {m}"
+            ));
+            for r in &self.ratios {
+                let mut row = vec![r.method.clone(), fixed(r.pd_ratio, 2)];
+                for &i in &based {
+                    row.push(fixed_or(r.base_correlation_ratio[i], 2, "-"));
+                }
+                t.push(row);
+            }
+            out.push(t);
         }
-        ratios.notes.extend(wrap(&self.reading, 79, 0));
-        vec![side, ratios]
+        if let Some(last) = out.last_mut() {
+            last.notes.extend(wrap(&self.reading, 79, 0));
+        }
+        out
     }
 }
