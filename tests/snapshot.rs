@@ -962,6 +962,7 @@ fn tranches_that_do_not_tile_are_a_warning() {
         vec![
             "q.csv:4:4: column \"attach_pct\": tranches of 2026-06-19 maturing 2031-06-20 do not tile from 0: expected an attachment of 3 percent (the detachment on line 3), found 7 on line 4: a gap from 3 to 7 percent",
             "q.csv:6:4: column \"attach_pct\": tranches of 2026-06-19 maturing 2033-06-20 do not tile from 0: expected an attachment of 3 percent (the detachment on line 5), found 0 on line 6: an overlap from 0 to 3 percent",
+            "q.csv:5:3: column \"maturity\": tranches of 2026-06-19 maturing 2033-06-20 run past the last index maturity 2031-06-20: the hazard curve is extended flat beyond it",
         ]
     );
     let text = file(&[

@@ -64,8 +64,7 @@ fn capital_structure_losses_add_up_to_the_pool_loss() {
     }
 }
 
-/// Law of the model: the [0, 100%] tranche does not depend on correlation,
-/// and its protection leg equals the index protection leg's loss part.
+/// Law of the model: the [0, 100%] tranche does not depend on correlation.
 #[test]
 fn whole_pool_tranche_is_correlation_free() {
     let s = schedule(0.02, 0.02, d(2031, 6, 20));

@@ -1010,6 +1010,22 @@ fn assemble(
         zeros.sort_by_key(|z| (z.date, z.line));
 
         tiling_warnings(sheet, date, &tranches, &mut warnings);
+        // Past the last index maturity the hazard curve is only extended flat.
+        if let Some(last) = index.last().map(|q| q.maturity) {
+            let mut seen = Vec::new();
+            for t in tranches.iter().filter(|t| t.maturity > last) {
+                if !seen.contains(&t.maturity) {
+                    seen.push(t.maturity);
+                    warnings.push(Problem::at(
+                        sheet.at(t.line, MATURITY),
+                        format!(
+                            "tranches of {date} maturing {} run past the last index maturity {last}: the hazard curve is extended flat beyond it",
+                            t.maturity
+                        ),
+                    ));
+                }
+            }
+        }
 
         dates.push(MarketDate {
             date,

@@ -6,8 +6,11 @@
 //! minus [0, A] at rho_A, both in pool-notional units with the quoted
 //! tranche's own coupon and upfront. The equity tranche fixes rho at its
 //! detachment; each tranche above then has one unknown, rho_D, given the
-//! rho_A already solved. The base tranche's value is monotone in its
-//! correlation, so a solution is unique when it exists.
+//! rho_A already solved. The base tranche's expected loss falls as its
+//! correlation rises, so its value is monotone in every case we know and a
+//! solution is unique when it exists; recovery amortisation pulls the
+//! outstanding notional both ways, so this is not proved. The solve takes
+//! the first sign change from low correlation upward.
 //!
 //! # No solution is an answer
 //!
