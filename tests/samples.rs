@@ -329,3 +329,21 @@ fn tranche_legs_by_closed_form_and_quadrature_agree() {
         }
     }
 }
+
+/// A byte that is not UTF-8 is located like any other bad cell.
+#[test]
+fn non_utf8_byte_is_located() {
+    let dir = std::env::temp_dir().join(format!("skewbook-utf8-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let path = dir.join("latin1.csv");
+    let mut bytes =
+        b"date,instrument,maturity,attach_pct,detach_pct,quote_kind,quote,coupon_bp\n".to_vec();
+    bytes.extend_from_slice(b"2026-06-18,index,2031-06-20,,,spread_bp,6\xe90,\n");
+    std::fs::write(&path, bytes).unwrap();
+    let (code, _, err) = skewbook(&["curve", path.to_str().unwrap()]);
+    assert_eq!(code, 2);
+    assert!(
+        err.contains("latin1.csv:2:42:") && err.contains("0xe9"),
+        "{err}"
+    );
+}

@@ -21,7 +21,8 @@ impl DiscountCurve {
     }
 
     /// The curve through continuously compounded Act/365F zero rates at
-    /// pillar dates, sorted by date.
+    /// pillar dates, sorted by date. With no pillars it is a zero rate:
+    /// callers wanting another flat rate use [`DiscountCurve::flat`].
     ///
     /// # Formula
     /// ```text

@@ -103,11 +103,6 @@ impl Schedule {
         }
     }
 
-    /// Curve time of `d` from this schedule's trade date.
-    pub fn time(&self, d: NaiveDate) -> f64 {
-        curve_time(self.trade, d)
-    }
-
     /// Curve time of the protection end, maturity + 1 day.
     pub fn protection_end_time(&self) -> f64 {
         self.periods.last().map_or(0.0, |p| p.t_end)

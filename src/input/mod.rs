@@ -4,21 +4,42 @@
 pub mod history;
 pub mod snapshot;
 
-use crate::error::{Error, ErrorKind, Result};
+use crate::error::{Error, ErrorKind, Location, Problem, Result};
 use std::io::Read;
 
 /// Reads a whole input file, or standard input when `path` is `-`.
 ///
 /// # Errors
-/// [`ErrorKind::Io`] naming the path when it cannot be opened or read, or
-/// is not UTF-8.
+/// [`ErrorKind::Io`] naming the path when it cannot be opened or read;
+/// [`ErrorKind::InvalidInput`] at the line and column of the first byte
+/// that is not UTF-8.
 pub fn read_source(path: &str) -> Result<String> {
-    let mut text = String::new();
+    let mut bytes = Vec::new();
     let res = if path == "-" {
-        std::io::stdin().read_to_string(&mut text).map(|_| ())
+        std::io::stdin().read_to_end(&mut bytes).map(|_| ())
     } else {
-        std::fs::File::open(path).and_then(|mut f| f.read_to_string(&mut text).map(|_| ()))
+        std::fs::File::open(path).and_then(|mut f| f.read_to_end(&mut bytes).map(|_| ()))
     };
     res.map_err(|e| Error::msg(ErrorKind::Io, format!("{path}: cannot read: {e}")))?;
-    Ok(text)
+    String::from_utf8(bytes).map_err(|e| {
+        let good = &e.as_bytes()[..e.utf8_error().valid_up_to()];
+        let line = good.iter().filter(|&&b| b == b'\n').count() as u64 + 1;
+        let start = good.iter().rposition(|&b| b == b'\n').map_or(0, |i| i + 1);
+        let column = String::from_utf8_lossy(&good[start..]).chars().count() + 1;
+        Error::new(
+            ErrorKind::InvalidInput,
+            Problem::at(
+                Location {
+                    path: path.to_string(),
+                    line,
+                    column: Some(column),
+                    header: None,
+                },
+                format!(
+                    "expected UTF-8 text, found the byte 0x{:02x}",
+                    e.as_bytes()[e.utf8_error().valid_up_to()]
+                ),
+            ),
+        )
+    })
 }
