@@ -390,15 +390,10 @@ impl Report for ImpliedReport {
     }
 
     fn csv(&self) -> Table {
-        let mut t = Table::new(&[
-            "date",
-            "recovery_pct",
-            "maturity",
-            "attach_pct",
-            "detach_pct",
-            "quote_kind",
-            "quote",
-            "coupon_bp",
+        let mut headers = vec!["date", "recovery_pct"];
+        headers.extend(QuotedTranche::CSV_HEADERS);
+        headers.extend([
+            "compound_root_count",
             "compound_correlation_1",
             "compound_correlation_2",
             "compound_range_low",
@@ -409,17 +404,13 @@ impl Report for ImpliedReport {
             "flags",
             "base_note",
         ]);
+        let mut t = Table::new(&headers);
         for d in &self.dates {
             for r in &d.tranches {
-                t.push(vec![
-                    d.date.clone(),
-                    csv_num(Some(pct(d.recovery))),
-                    r.tranche.maturity.clone(),
-                    csv_num(Some(r.tranche.attach_pct)),
-                    csv_num(Some(r.tranche.detach_pct)),
-                    r.tranche.quote_kind.to_string(),
-                    csv_num(Some(r.tranche.quote)),
-                    csv_num(r.tranche.coupon_bp),
+                let mut row = vec![d.date.clone(), csv_num(Some(pct(d.recovery)))];
+                row.extend(r.tranche.csv_cells());
+                row.extend([
+                    r.compound_correlation.len().to_string(),
                     csv_num(r.compound_correlation.first().copied()),
                     csv_num(r.compound_correlation.get(1).copied()),
                     csv_num(Some(r.compound_range[0])),
@@ -430,6 +421,7 @@ impl Report for ImpliedReport {
                     r.flags.join(";"),
                     r.base_note.clone().unwrap_or_default(),
                 ]);
+                t.push(row);
             }
         }
         t

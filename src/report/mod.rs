@@ -61,6 +61,31 @@ pub struct QuotedTranche {
     pub coupon_bp: Option<f64>,
 }
 
+impl QuotedTranche {
+    /// CSV headers of these fields, in order.
+    pub const CSV_HEADERS: [&'static str; 6] = [
+        "maturity",
+        "attach_pct",
+        "detach_pct",
+        "quote_kind",
+        "quote",
+        "coupon_bp",
+    ];
+
+    /// CSV cells of these fields, in the order of [`Self::CSV_HEADERS`].
+    pub fn csv_cells(&self) -> [String; 6] {
+        use crate::output::csv_num;
+        [
+            self.maturity.clone(),
+            csv_num(Some(self.attach_pct)),
+            csv_num(Some(self.detach_pct)),
+            self.quote_kind.to_string(),
+            csv_num(Some(self.quote)),
+            csv_num(self.coupon_bp),
+        ]
+    }
+}
+
 impl From<&TrancheQuote> for QuotedTranche {
     fn from(t: &TrancheQuote) -> Self {
         QuotedTranche {

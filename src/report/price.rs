@@ -179,16 +179,9 @@ impl Report for PriceReport {
     }
 
     fn csv(&self) -> Table {
-        let mut t = Table::new(&[
-            "date",
-            "recovery_pct",
-            "correlation",
-            "maturity",
-            "attach_pct",
-            "detach_pct",
-            "quote_kind",
-            "quote",
-            "coupon_bp",
+        let mut headers = vec!["date", "recovery_pct", "correlation"];
+        headers.extend(QuotedTranche::CSV_HEADERS);
+        headers.extend([
             "model_upfront_pct",
             "model_spread_bp",
             "expected_loss_pct",
@@ -196,18 +189,16 @@ impl Report for PriceReport {
             "premium_annuity",
             "value",
         ]);
+        let mut t = Table::new(&headers);
         for d in &self.dates {
             for p in &d.tranches {
-                t.push(vec![
+                let mut row = vec![
                     d.date.clone(),
                     csv_num(Some(pct(d.recovery))),
                     csv_num(Some(d.correlation)),
-                    p.tranche.maturity.clone(),
-                    csv_num(Some(p.tranche.attach_pct)),
-                    csv_num(Some(p.tranche.detach_pct)),
-                    p.tranche.quote_kind.to_string(),
-                    csv_num(Some(p.tranche.quote)),
-                    csv_num(p.tranche.coupon_bp),
+                ];
+                row.extend(p.tranche.csv_cells());
+                row.extend([
                     csv_num(Some(p.model_upfront_pct)),
                     csv_num(p.model_spread_bp),
                     csv_num(Some(p.expected_loss_pct)),
@@ -215,6 +206,7 @@ impl Report for PriceReport {
                     csv_num(Some(p.premium_annuity)),
                     csv_num(Some(p.value)),
                 ]);
+                t.push(row);
             }
         }
         t
