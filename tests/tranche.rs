@@ -239,3 +239,44 @@ proptest! {
         }
     }
 }
+
+/// Iteration counts pinned, so a slower solver fails here (and shows in
+/// the benches): bracketed Newton from the scan's secant point needs a
+/// handful of evaluations per root or base solve, and the bootstrap's
+/// Brent (which evaluates twice per iteration) about a dozen per pillar.
+#[test]
+fn solvers_stay_fast() {
+    let m = d(2031, 6, 20);
+    let s = schedule(0.01, 0.0, m);
+    let probe = valuer(&s, 0.4, 0.03, 0.07, Quote::Spread(0.0));
+    let spread = probe.model_spread(&probe.legs_flat(0.05)).unwrap();
+    let v = valuer(&s, 0.4, 0.03, 0.07, Quote::Spread(spread));
+    for r in compound_roots(&v).roots {
+        assert!(r.evaluations <= 6, "{} evaluations", r.evaluations);
+    }
+    let eq = valuer(
+        &s,
+        0.4,
+        0.0,
+        0.03,
+        Quote::Upfront {
+            upfront: 0.35,
+            coupon: 0.05,
+        },
+    );
+    match skewbook::solve::base::base_correlation(&eq, 0.0) {
+        skewbook::solve::base::BaseSolve::Solved(sol) => {
+            assert!(sol.evaluations <= 10, "{}", sol.evaluations)
+        }
+        other => panic!("{other:?}"),
+    }
+    let snap = skewbook::input::snapshot::read_snapshot(concat!(
+        env!("CARGO_MANIFEST_DIR"),
+        "/market-samples/hgx-2026-06-18.csv"
+    ))
+    .unwrap();
+    let c = skewbook::curve::PoolCurves::build(&snap.dates[0], &Default::default(), "hgx").unwrap();
+    for p in &c.pillars {
+        assert!(p.evaluations <= 20, "{} evaluations", p.evaluations);
+    }
+}
