@@ -402,7 +402,7 @@ fn moment_fit(e: &mut Estimate, x: &[f64], y: &[f64], k: f64) {
 /// binomial noise inflates the variance (see [`joint_default_moments`]).
 ///
 /// # References
-/// Vasicek, "Loan portfolio value", Risk 15(12), 2002 (E[X²] = Phi2(c, c; rho));
+/// Vasicek, "Loan portfolio value", Risk 15(12), 2002 (`E[X²] = Phi2(c, c; rho)`);
 /// Gordy, "A comparative anatomy of credit risk models", JBF 24 (2000).
 ///
 /// ```
