@@ -1,6 +1,6 @@
 //! Complementary error function at full double precision.
 //!
-//! A Rust transcription of the Sun/FreeBSD `s_erf.c` (as carried by the
+//! A Rust port of the Sun/FreeBSD `s_erf.c` (as carried by the
 //! `libm` crate, MIT licence): rational approximations on five ranges with
 //! error below one ulp. `statrs` 0.18's `erfc` is off by up to 1e-10
 //! relative (worst near 0.5), which is too coarse for 1e-15 bivariate
