@@ -3,7 +3,8 @@
 //! closed form and by quadrature. Each iteration asserts its result.
 use criterion::{black_box, criterion_group, criterion_main, Criterion};
 use skewbook::loss::{closed, quadrature, BaseTranche, Cap, Correlation, Horizon, Method};
-use skewbook::math::bvn::{bvn_cdf, norm_cdf, Bvn};
+use skewbook::math::bvn::{bvn_cdf, Bvn};
+use skewbook::math::normal::cdf as norm_cdf;
 
 fn bvn(c: &mut Criterion) {
     let mut g = c.benchmark_group("bvn/genz");

@@ -8,7 +8,7 @@ use rand_chacha::ChaCha8Rng;
 use skewbook::loss::{
     closed, expected_min, quadrature, BaseTranche, Cap, Horizon, Method, TrancheBounds,
 };
-use skewbook::math::bvn::norm_cdf;
+use skewbook::math::normal::cdf as norm_cdf;
 use skewbook::math::normal::{inv_cdf, pdf};
 use std::num::NonZeroUsize;
 

@@ -11,7 +11,7 @@
 //! `p(A) = k`) gives the derivative in `rho`.
 
 use super::{edge_drho, edge_value, Cap, Correlation, Horizon};
-use crate::math::bvn::norm_cdf;
+use crate::math::normal::cdf as norm_cdf;
 use crate::math::normal::pdf;
 
 /// `E[min(p(Z), k)]` by the closed form.

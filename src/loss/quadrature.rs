@@ -35,7 +35,7 @@
 //! (the boundary terms at `z_k` cancel because `p(z_k) = k`).
 
 use super::{edge_drho, edge_value, Cap, Expectation, Horizon};
-use crate::math::bvn::norm_cdf;
+use crate::math::normal::cdf as norm_cdf;
 use crate::math::normal::pdf;
 use gauss_quad::legendre::GaussLegendre;
 use std::num::NonZeroUsize;

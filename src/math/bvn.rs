@@ -37,8 +37,8 @@
 //! # The normal CDF used
 //!
 //! `statrs` 0.18's `erfc` is off by up to 1e-10 relative, which would cap
-//! this function at ~1e-11; [`norm_cdf`] uses the Sun/FreeBSD `erfc`
-//! (below one ulp) instead.
+//! this function at ~1e-11; it uses [`crate::math::normal::cdf`], built on
+//! the `libm` crate's `erfc` (below one ulp).
 //!
 //! # References
 //!
@@ -49,9 +49,9 @@
 //! - R. L. Plackett, "A reduction formula for normal multivariate
 //!   integrals", Biometrika 41 (1954) 351-360.
 
-mod erfc;
+use super::normal::cdf as norm_cdf;
 
-use std::f64::consts::{FRAC_1_SQRT_2, PI};
+use std::f64::consts::PI;
 
 const TWO_PI: f64 = 2.0 * PI;
 
@@ -385,36 +385,6 @@ impl Bvn {
             bvn
         }
     }
-}
-
-/// Standard normal CDF `N(x)` at full double precision (below 1 ulp of
-/// `erfc` plus the rounding of `x / sqrt 2`), tails computed directly.
-///
-/// `statrs` 0.18's `erfc` (behind [`crate::math::normal::cdf`]) is off by up
-/// to 1e-10 relative near `|x| = 0.7`; this uses the Sun/FreeBSD `erfc`
-/// instead. Used by the bivariate normal and by [`crate::loss`].
-///
-/// # Formula
-///
-/// ```text
-/// N(x) = erfc(-x / sqrt 2) / 2
-/// ```
-///
-/// # References
-///
-/// Sun Microsystems `s_erf.c` (1993), as in FreeBSD msun and the `libm` crate.
-///
-/// # Example
-///
-/// ```
-/// use skewbook::math::bvn::norm_cdf;
-/// assert_eq!(norm_cdf(0.0), 0.5);
-/// // N(-1) = 0.15865525393145705 (mpmath)
-/// assert!((norm_cdf(-1.0) - 0.15865525393145705).abs() < 3e-17);
-/// ```
-#[inline]
-pub fn norm_cdf(x: f64) -> f64 {
-    0.5 * erfc::erfc(-x * FRAC_1_SQRT_2)
 }
 
 /// Standard bivariate normal density `phi2(h, k; r)`.

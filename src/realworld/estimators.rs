@@ -797,8 +797,10 @@ pub fn binomial_ml(h: &History) -> Estimate {
         );
         return e;
     }
-    /// A failed line search counts as converged only below this gradient
-    /// of the log-likelihood in (G(PD), logit rho).
+    /// A failed line search counts as converged only when a Newton step
+    /// promises less than this gain in log-likelihood, or the gradient in
+    /// (G(PD), logit rho) is below the second tolerance.
+    const DECREMENT_TOLERANCE: f64 = 1e-8;
     const GRADIENT_TOLERANCE: f64 = 1e-5;
     let coh = cohorts(&counts);
     let f = |th: [f64; 2]| ll_theta(&coh, th);
@@ -815,7 +817,8 @@ pub fn binomial_ml(h: &History) -> Estimate {
         iterations = it + 1;
         let (f0, g, hm) = grad_hess(&f, x);
         let det = hm[0][0] * hm[1][1] - hm[0][1] * hm[0][1];
-        let mut step = if hm[0][0] < 0.0 && det > 0.0 {
+        let newton = hm[0][0] < 0.0 && det > 0.0;
+        let mut step = if newton {
             // Newton: step = -H^-1 g
             [
                 -(hm[1][1] * g[0] - hm[0][1] * g[1]) / det,
@@ -845,8 +848,12 @@ pub fn binomial_ml(h: &History) -> Estimate {
             t *= 0.5;
         }
         let Some(next) = accepted else {
-            // No step improves the likelihood: a maximum only if it is flat here.
-            converged = g[0].abs().max(g[1].abs()) < GRADIENT_TOLERANCE;
+            // No step improves the likelihood: a maximum only if the
+            // quadratic model promises no gain (Newton decrement) or the
+            // gradient is flat.
+            let promised = 0.5 * (g[0] * step[0] + g[1] * step[1]).abs();
+            converged = (newton && promised < DECREMENT_TOLERANCE)
+                || g[0].abs().max(g[1].abs()) < GRADIENT_TOLERANCE;
             break;
         };
         let moved = ((next[0] - x[0]).powi(2) + (next[1] - x[1]).powi(2)).sqrt();
@@ -859,6 +866,9 @@ pub fn binomial_ml(h: &History) -> Estimate {
     let rho = 1.0 / (1.0 + (-x[1]).exp());
     let c = x[0];
     let (_, g, hm) = grad_hess(&f, x);
+    // The step test can keep failing on finite-difference noise at the
+    // optimum itself: a flat gradient there is convergence too.
+    converged |= g[0].abs().max(g[1].abs()) < GRADIENT_TOLERANCE;
     if !converged {
         // Never report where a failed search happened to stop.
         e.notes.push(format!(
@@ -890,11 +900,16 @@ pub fn binomial_ml(h: &History) -> Estimate {
             e.set_pd(cdf(c), Some(pdf(c) * v11.sqrt()));
             e.set_rho(rho, Some(rho * (1.0 - rho) * v22.sqrt()));
         } else {
-            e.set_pd(cdf(c), None);
-            e.set_rho(rho, None);
-            e.se_method = None;
+            // The likelihood is flat (or not concave) in rho here: the data
+            // do not identify it, so report none rather than the start value.
+            let se_c = (hm[0][0] < 0.0).then(|| (-1.0 / hm[0][0]).sqrt());
+            e.set_pd(cdf(c), se_c.map(|s| pdf(c) * s));
+            if se_c.is_none() {
+                e.se_method = None;
+            }
             e.notes.push(
-                "the observed information is not positive definite at the fit; no standard errors"
+                "no rho estimate: the observed information is not positive definite at the fit \
+                 (the likelihood does not identify rho)"
                     .to_string(),
             );
         }
