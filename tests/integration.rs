@@ -1,5 +1,8 @@
 //! The one integration-test binary; each module is one area.
 
+/// Helpers shared by the command-line tests.
+mod common;
+
 /// Bivariate normal CDF: mpmath fixture and identities.
 mod bvn;
 /// The binary on malformed snapshots: exit 2, `path:line:col:` on stderr, no panic; `-` is stdin.

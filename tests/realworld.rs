@@ -91,18 +91,7 @@ fn no_nan(out: &str) -> bool {
         .any(|tok| ["NaN", "nan", "inf", "-inf", "Infinity", "-Infinity"].contains(&tok))
 }
 
-fn skewbook(args: &[&str]) -> (i32, String, String) {
-    let out = std::process::Command::new(env!("CARGO_BIN_EXE_skewbook"))
-        .args(args)
-        .current_dir(env!("CARGO_MANIFEST_DIR"))
-        .output()
-        .unwrap();
-    (
-        out.status.code().unwrap_or(-1),
-        String::from_utf8(out.stdout).unwrap(),
-        String::from_utf8(out.stderr).unwrap(),
-    )
-}
+use crate::common::{skewbook, write_temp};
 
 #[test]
 fn realworld_runs_on_bundled_histories_in_every_format() {
@@ -170,15 +159,11 @@ fn zero_default_years_stated_for_probit_numbers_for_the_others() {
 
 #[test]
 fn malformed_history_exits_2_with_line_and_column() {
-    let dir = std::env::temp_dir().join(format!("skewbook-rw-{}", std::process::id()));
-    std::fs::create_dir_all(&dir).unwrap();
-    let path = dir.join("bad.csv");
-    std::fs::write(
-        &path,
+    let path = write_temp(
+        "bad-history",
         "period,defaults,obligors\n2001,3,100\n2002,7,abc\n2003,1,50\n",
-    )
-    .unwrap();
-    let p = path.to_str().unwrap();
+    );
+    let p = path.as_str();
     let (code, out, err) = skewbook(&["realworld", p]);
     assert_eq!(code, 2);
     assert!(out.is_empty());
@@ -186,7 +171,6 @@ fn malformed_history_exits_2_with_line_and_column() {
         err.trim(),
         format!("error: {p}:3:3: column \"obligors\": expected a whole number (0, 1, 2, ...), found \"abc\"")
     );
-    let _ = std::fs::remove_dir_all(&dir);
 }
 
 #[test]
@@ -348,16 +332,12 @@ fn loss_rejects_levels_and_maturities_it_cannot_honour() {
 /// no rho, never the point where the optimiser happened to stop, and its PD
 /// is the default frequency 2/3 (the Bernoulli maximum likelihood).
 #[test]
-fn binomial_ml_reports_no_estimate_when_the_fit_fails() {
-    let dir = std::env::temp_dir().join(format!("skewbook-bml-{}", std::process::id()));
-    std::fs::create_dir_all(&dir).unwrap();
-    let path = dir.join("tiny.csv");
-    std::fs::write(
-        &path,
+fn binomial_ml_gives_no_rho_where_the_likelihood_is_flat_in_it() {
+    let path = write_temp(
+        "single-obligors",
         "period,defaults,obligors\n2001,1,1\n2002,0,1\n2003,1,1\n",
-    )
-    .unwrap();
-    let (code, out, _) = skewbook(&["realworld", path.to_str().unwrap(), "--format", "json"]);
+    );
+    let (code, out, _) = skewbook(&["realworld", &path, "--format", "json"]);
     assert_eq!(code, 0);
     let v: Value = serde_json::from_str(&out).unwrap();
     let m = v["methods"]

@@ -2,21 +2,8 @@
 //! reprice every index quote to 1e-8 in its unit, base correlations
 //! reprice their tranches, and nothing prints NaN.
 
+use crate::common::{skewbook, write_temp};
 use std::path::Path;
-use std::process::Command;
-
-fn skewbook(args: &[&str]) -> (i32, String, String) {
-    let out = Command::new(env!("CARGO_BIN_EXE_skewbook"))
-        .args(args)
-        .current_dir(env!("CARGO_MANIFEST_DIR"))
-        .output()
-        .expect("run skewbook");
-    (
-        out.status.code().unwrap_or(-1),
-        String::from_utf8_lossy(&out.stdout).into_owned(),
-        String::from_utf8_lossy(&out.stderr).into_owned(),
-    )
-}
 
 fn snapshots() -> Vec<String> {
     let dir = Path::new(env!("CARGO_MANIFEST_DIR")).join("market-samples");
@@ -163,11 +150,7 @@ fn tranches_that_do_not_tile_are_flagged() {
                 2026-06-18,index,2031-06-20,,,spread_bp,60,\n\
                 2026-06-18,tranche,2031-06-20,0,3,upfront_pct,40,500\n\
                 2026-06-18,tranche,2031-06-20,7,15,spread_bp,60,\n";
-    let dir = std::env::temp_dir().join(format!("skewbook-gap-{}", std::process::id()));
-    std::fs::create_dir_all(&dir).unwrap();
-    let path = dir.join("gap.csv");
-    std::fs::write(&path, text).unwrap();
-    let p = path.to_string_lossy().into_owned();
+    let p = write_temp("gap", text);
     let (code, _, err) = skewbook(&["curve", &p]);
     assert_eq!(code, 0);
     assert!(
@@ -223,14 +206,6 @@ fn closed_form_and_quadrature_agree_on_every_sample_date() {
         }
     }
     assert!(checked > 10_000, "{checked}");
-}
-
-fn write_temp(name: &str, text: &str) -> String {
-    let dir = std::env::temp_dir().join(format!("skewbook-{}-{name}", std::process::id()));
-    std::fs::create_dir_all(&dir).unwrap();
-    let path = dir.join(format!("{name}.csv"));
-    std::fs::write(&path, text).unwrap();
-    path.to_string_lossy().into_owned()
 }
 
 /// An equity upfront no correlation can reach (above what the tranche can
@@ -333,14 +308,11 @@ fn tranche_legs_by_closed_form_and_quadrature_agree() {
 /// A byte that is not UTF-8 is located like any other bad cell.
 #[test]
 fn non_utf8_byte_is_located() {
-    let dir = std::env::temp_dir().join(format!("skewbook-utf8-{}", std::process::id()));
-    std::fs::create_dir_all(&dir).unwrap();
-    let path = dir.join("latin1.csv");
     let mut bytes =
         b"date,instrument,maturity,attach_pct,detach_pct,quote_kind,quote,coupon_bp\n".to_vec();
     bytes.extend_from_slice(b"2026-06-18,index,2031-06-20,,,spread_bp,6\xe90,\n");
-    std::fs::write(&path, bytes).unwrap();
-    let (code, _, err) = skewbook(&["curve", path.to_str().unwrap()]);
+    let path = write_temp("latin1", bytes);
+    let (code, _, err) = skewbook(&["curve", &path]);
     assert_eq!(code, 2);
     assert!(
         err.contains("latin1.csv:2:42:") && err.contains("0xe9"),
