@@ -48,23 +48,40 @@ impl From<FormatArg> for skewbook::output::Format {
     }
 }
 
+/// The curve choices for a snapshot: recovery and flat rate, in percent.
+#[derive(Debug, Args)]
+pub struct CurveChoiceArgs {
+    /// Recovery in percent; overrides the snapshot's `recovery_pct` (default 40).
+    #[arg(long, value_name = "PCT")]
+    pub recovery: Option<f64>,
+    /// Flat continuously compounded rate in percent, used when a date has no
+    /// `zero` rows (default 0).
+    #[arg(long, value_name = "PCT", allow_negative_numbers = true)]
+    pub rate: Option<f64>,
+}
+
+impl CurveChoiceArgs {
+    /// The choices in the library's units (fractions), not yet validated.
+    pub fn options(&self) -> skewbook::curve::MarketOptions {
+        skewbook::curve::MarketOptions {
+            recovery: self.recovery.map(|r| r / 100.0),
+            flat_rate: self.rate.unwrap_or(0.0) / 100.0,
+        }
+    }
+
+    /// Whether either choice was typed.
+    pub fn given(&self) -> bool {
+        self.recovery.is_some() || self.rate.is_some()
+    }
+}
+
 /// Options shared by every command that reads a snapshot.
 #[derive(Debug, Args)]
 pub struct MarketArgs {
     /// Snapshot CSV file (`-` reads standard input).
     pub file: String,
-    /// Recovery in percent; overrides the snapshot's `recovery_pct` (default 40).
-    #[arg(long, value_name = "PCT")]
-    pub recovery: Option<f64>,
-    /// Flat continuously compounded rate in percent, used when a date has no
-    /// `zero` rows.
-    #[arg(
-        long,
-        value_name = "PCT",
-        default_value_t = 0.0,
-        allow_negative_numbers = true
-    )]
-    pub rate: f64,
+    #[command(flatten)]
+    pub curve: CurveChoiceArgs,
     /// Output format.
     #[arg(long, value_enum, default_value_t)]
     pub format: FormatArg,
@@ -139,17 +156,9 @@ pub struct RealworldArgs {
     /// Snapshot to set the risk-neutral side beside the estimates.
     #[arg(long, value_name = "SNAPSHOT")]
     pub against: Option<String>,
-    /// Recovery in percent for the snapshot of `--against` (overrides its `recovery_pct`).
-    #[arg(long, value_name = "PCT", requires = "against")]
-    pub recovery: Option<f64>,
-    /// Flat rate in percent for the snapshot of `--against` when it has no `zero` rows.
-    #[arg(
-        long,
-        value_name = "PCT",
-        default_value_t = 0.0,
-        allow_negative_numbers = true
-    )]
-    pub rate: f64,
+    /// `--recovery` and `--rate` for the snapshot of `--against`.
+    #[command(flatten)]
+    pub curve: CurveChoiceArgs,
     /// Confidence levels for loss quantiles, comma-separated fractions.
     #[arg(long, value_delimiter = ',', default_values_t = [0.99, 0.999])]
     pub levels: Vec<f64>,

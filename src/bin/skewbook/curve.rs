@@ -11,10 +11,7 @@ use std::io::Write;
 /// Reads the snapshot and the market options shared by every snapshot command,
 /// printing the snapshot's warnings to standard error.
 pub fn load(m: &MarketArgs) -> Result<(Snapshot, MarketOptions), Failure> {
-    let opts = MarketOptions {
-        recovery: m.recovery.map(|r| r / 100.0),
-        flat_rate: m.rate / 100.0,
-    };
+    let opts = m.curve.options();
     opts.validate()?;
     let snapshot = read_snapshot(&m.file)?;
     for w in &snapshot.warnings {

@@ -46,6 +46,12 @@ fn parse_quantiles(items: &[String]) -> Result<Option<[(f64, f64); 2]>, Error> {
 
 /// Runs the command.
 pub fn run(args: crate::cli::RealworldArgs, out: &mut dyn Write) -> Result<Outcome, Failure> {
+    if args.against.is_none() && args.curve.given() {
+        return Err(Failure::Lib(Error::msg(
+            ErrorKind::Usage,
+            "--recovery and --rate apply to the snapshot of --against: expected --against SNAPSHOT with them",
+        )));
+    }
     let history = read_history(&args.file)?;
     let opts = Options {
         divisor: match args.variance_divisor {
@@ -56,10 +62,7 @@ pub fn run(args: crate::cli::RealworldArgs, out: &mut dyn Write) -> Result<Outco
     };
     let mut report = build_realworld(&history, &opts, &args.levels, args.lgd)?;
     if let Some(path) = &args.against {
-        let market = skewbook::curve::MarketOptions {
-            recovery: args.recovery.map(|r| r / 100.0),
-            flat_rate: args.rate / 100.0,
-        };
+        let market = args.curve.options();
         market.validate()?;
         let snapshot = skewbook::input::snapshot::read_snapshot(path)?;
         for w in &snapshot.warnings {
