@@ -256,66 +256,75 @@ fn check_curve(sc: &Scenario) {
     finish(sc.name, "curve", problems);
 }
 
+/// Every fixture tranche with its counterpart in the command's output and a
+/// label for messages; the two must list the same number of tranches per date.
+fn paired_tranches<'a>(
+    want: &'a Value,
+    got: &'a Value,
+    name: &str,
+) -> Vec<(String, &'a Value, &'a Value)> {
+    let mut out = Vec::new();
+    for wd in want.as_array().expect("fixture dates") {
+        let date = text(wd, "date", name);
+        let gd = find_date(got, date, name);
+        let gt = rows(gd, "tranches", name);
+        let wt = rows(wd, "tranches", name);
+        assert_eq!(gt.len(), wt.len(), "{name} {date}: number of tranche rows");
+        for w in wt {
+            let g = find_tranche(gt, w, name);
+            let label = format!(
+                "{date} {} [{}, {}]",
+                text(w, "maturity", name),
+                num(w, "attach_pct", name),
+                num(w, "detach_pct", name)
+            );
+            out.push((label, w, g));
+        }
+    }
+    out
+}
+
 fn check_implied(sc: &Scenario) {
     let want = fixture(sc.name);
     let got = run("implied", sc, &[], &[0, 1]);
     let mut problems = Vec::new();
-    for wd in want.as_array().expect("fixture dates") {
-        let date = text(wd, "date", sc.name);
-        let gd = find_date(&got, date, sc.name);
-        let gt = rows(gd, "tranches", sc.name);
-        let wt = rows(wd, "tranches", sc.name);
-        assert_eq!(
-            gt.len(),
-            wt.len(),
-            "{} {date}: number of tranche rows",
-            sc.name
-        );
-        for w in wt {
-            let g = find_tranche(gt, w, sc.name);
-            let label = format!(
-                "{date} {} [{}, {}]",
-                text(w, "maturity", sc.name),
-                num(w, "attach_pct", sc.name),
-                num(w, "detach_pct", sc.name)
-            );
-            let wc = rows(w, "compound_correlation", &label);
-            let gc = rows(g, "compound_correlation", &label);
-            if wc.len() != gc.len() {
-                problems.push(format!(
-                    "{label} compound correlation: skewbook {gc:?} independent {wc:?}"
-                ));
-            } else {
-                for (k, (a, b)) in gc.iter().zip(wc).enumerate() {
-                    let (a, b) = (a.as_f64().expect("root"), b.as_f64().expect("root"));
-                    problems.extend(close(
-                        a,
-                        b,
-                        CORRELATION_ABS,
-                        &format!("{label} compound root {k}"),
-                    ));
-                }
-            }
-            match (
-                g["base_correlation"].as_f64(),
-                w["base_correlation"].as_f64(),
-            ) {
-                (Some(a), Some(b)) => problems.extend(close(
+    for (label, w, g) in paired_tranches(&want, &got, sc.name) {
+        let wc = rows(w, "compound_correlation", &label);
+        let gc = rows(g, "compound_correlation", &label);
+        if wc.len() != gc.len() {
+            problems.push(format!(
+                "{label} compound correlation: skewbook {gc:?} independent {wc:?}"
+            ));
+        } else {
+            for (k, (a, b)) in gc.iter().zip(wc).enumerate() {
+                let (a, b) = (a.as_f64().expect("root"), b.as_f64().expect("root"));
+                problems.extend(close(
                     a,
                     b,
                     CORRELATION_ABS,
-                    &format!("{label} base correlation"),
-                )),
-                (None, None) => {
-                    assert!(
-                        g["base_correlation"].is_null(),
-                        "{label}: base_correlation neither number nor null"
-                    )
-                }
-                (a, b) => problems.push(format!(
-                    "{label} base correlation: skewbook {a:?} independent {b:?}"
-                )),
+                    &format!("{label} compound root {k}"),
+                ));
             }
+        }
+        match (
+            g["base_correlation"].as_f64(),
+            w["base_correlation"].as_f64(),
+        ) {
+            (Some(a), Some(b)) => problems.extend(close(
+                a,
+                b,
+                CORRELATION_ABS,
+                &format!("{label} base correlation"),
+            )),
+            (None, None) => {
+                assert!(
+                    g["base_correlation"].is_null(),
+                    "{label}: base_correlation neither number nor null"
+                )
+            }
+            (a, b) => problems.push(format!(
+                "{label} base correlation: skewbook {a:?} independent {b:?}"
+            )),
         }
     }
     finish(sc.name, "implied", problems);
@@ -325,37 +334,18 @@ fn check_price(sc: &Scenario) {
     let want = fixture(sc.name);
     let got = run("price", sc, &["--correlation", sc.correlation], &[0]);
     let mut problems = Vec::new();
-    for wd in want.as_array().expect("fixture dates") {
-        let date = text(wd, "date", sc.name);
-        let gd = find_date(&got, date, sc.name);
-        let gt = rows(gd, "tranches", sc.name);
-        let wt = rows(wd, "tranches", sc.name);
-        assert_eq!(
-            gt.len(),
-            wt.len(),
-            "{} {date}: number of tranche rows",
-            sc.name
-        );
-        for w in wt {
-            let g = find_tranche(gt, w, sc.name);
-            let label = format!(
-                "{date} {} [{}, {}]",
-                text(w, "maturity", sc.name),
-                num(w, "attach_pct", sc.name),
-                num(w, "detach_pct", sc.name)
-            );
-            for (field, tol) in [
-                ("model_upfront_pct", UPFRONT_PP),
-                ("model_spread_bp", SPREAD_BP),
-                ("expected_loss_pct", EXPECTED_LOSS_PP),
-            ] {
-                problems.extend(close(
-                    num(g, field, &label),
-                    num(w, field, &label),
-                    tol,
-                    &format!("{label} {field}"),
-                ));
-            }
+    for (label, w, g) in paired_tranches(&want, &got, sc.name) {
+        for (field, tol) in [
+            ("model_upfront_pct", UPFRONT_PP),
+            ("model_spread_bp", SPREAD_BP),
+            ("expected_loss_pct", EXPECTED_LOSS_PP),
+        ] {
+            problems.extend(close(
+                num(g, field, &label),
+                num(w, field, &label),
+                tol,
+                &format!("{label} {field}"),
+            ));
         }
     }
     finish(sc.name, "price", problems);
