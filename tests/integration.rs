@@ -11,6 +11,8 @@ mod cli_errors;
 mod curve;
 /// The command line against the independent Python implementation's fixtures.
 mod independent;
+/// Sample outputs against the fixtures recorded before a refactoring.
+mod outputs;
 /// Real-world calibration: estimators against an independent Python
 /// implementation, coverage by simulation, the `loss` and `realworld` commands.
 mod realworld;
