@@ -4,12 +4,12 @@
 //! timed loop so a broken build cannot bench a shortcut.
 
 use criterion::{black_box, criterion_group, criterion_main, Criterion};
-use skewbook::curve::{MarketOptions, PoolCurves};
+use skewbook::curve::{MarketOptions, Pool};
 use skewbook::input::snapshot::read_snapshot;
 use skewbook::market::TrancheQuote;
 use skewbook::solve::base::{base_correlation, BaseSolve};
 use skewbook::solve::compound::compound_roots;
-use skewbook::tranche::{TrancheSchedule, TrancheValuer};
+use skewbook::tranche::{Tranche, TrancheSchedule, TrancheValuer};
 
 const SNAPSHOT: &str = "market-samples/hgx-2026-06-18.csv";
 const HISTORY: &str = "market-samples/hgx-history-2026-06.csv";
@@ -18,33 +18,23 @@ fn pricing(c: &mut Criterion) {
     let snap = read_snapshot(SNAPSHOT).expect("bundled snapshot");
     let opts = MarketOptions::default();
     let md = &snap.dates[0];
-    let curves = PoolCurves::build(md, &opts, SNAPSHOT).expect("curves");
+    let curves = Pool::build(md, &opts, SNAPSHOT).expect("curves");
     let mezz: &TrancheQuote = &md.tranches[1];
     let equity: &TrancheQuote = &md.tranches[0];
-    let schedule = TrancheSchedule::new(md.date, mezz.maturity, &curves.discount, &curves.hazard);
-    let v = |t: &TrancheQuote| TrancheValuer {
-        schedule: &schedule,
-        recovery: curves.recovery,
-        attach: t.attach,
-        detach: t.detach,
-        quote: t.quote,
+    let schedule = TrancheSchedule::for_pool(&curves, mezz.maturity).expect("schedule");
+    let v = |t: &TrancheQuote| {
+        let tranche = Tranche::new(t.attach, t.detach).expect("bounds");
+        TrancheValuer::new(&schedule, tranche, t.quote).expect("valuer")
     };
 
     c.bench_function("curve/bootstrap/4_pillars", |b| {
         b.iter(|| {
-            let pc = PoolCurves::build(black_box(md), &opts, SNAPSHOT).expect("curves");
+            let pc = Pool::build(black_box(md), &opts, SNAPSHOT).expect("curves");
             assert_eq!(pc.pillars.len(), md.index.len());
         })
     });
     c.bench_function("tranche/schedule/5y", |b| {
-        b.iter(|| {
-            TrancheSchedule::new(
-                md.date,
-                black_box(mezz.maturity),
-                &curves.discount,
-                &curves.hazard,
-            )
-        })
+        b.iter(|| TrancheSchedule::for_pool(&curves, black_box(mezz.maturity)).expect("schedule"))
     });
     c.bench_function("tranche/price/mezzanine_5y", |b| {
         let val = v(mezz);

@@ -14,9 +14,9 @@
 //! show them, and prints a snapshot file.
 
 use chrono::{Datelike, Days, NaiveDate, Weekday};
-use skewbook::curve::{MarketOptions, PoolCurves};
+use skewbook::curve::{MarketOptions, Pool};
 use skewbook::market::{IndexQuote, MarketDate, Quote, ZeroPillar};
-use skewbook::tranche::{TrancheSchedule, TrancheValuer};
+use skewbook::tranche::{Tranche, TrancheSchedule, TrancheValuer};
 
 /// A tranche of a scenario: bounds, coupon (None: quoted as a par spread)
 /// and the base correlation at the detachment.
@@ -135,13 +135,8 @@ fn print_scenario(sc: &Scenario, header: bool) -> Result<(), skewbook::Error> {
             })
             .collect(),
     };
-    let curves = PoolCurves::build(&md, &MarketOptions::default(), "scenario")?;
-    let schedule = TrancheSchedule::new(
-        sc.trade,
-        sc.tranche_maturity,
-        &curves.discount,
-        &curves.hazard,
-    );
+    let pool = Pool::build(&md, &MarketOptions::default(), "scenario")?;
+    let schedule = TrancheSchedule::for_pool(&pool, sc.tranche_maturity)?;
     if header {
         println!("date,instrument,maturity,attach_pct,detach_pct,quote_kind,quote,coupon_bp,recovery_pct");
     }
@@ -182,13 +177,7 @@ fn print_scenario(sc: &Scenario, header: bool) -> Result<(), skewbook::Error> {
             },
             None => Quote::Spread(0.0),
         };
-        let v = TrancheValuer {
-            schedule: &schedule,
-            recovery: sc.recovery,
-            attach: l.attach,
-            detach: l.detach,
-            quote,
-        };
+        let v = TrancheValuer::new(&schedule, Tranche::new(l.attach, l.detach)?, quote)?;
         let legs = v.legs(rho_below, rho_d);
         let (a, dd) = (round_to(l.attach * 100.0, 6), round_to(l.detach * 100.0, 6));
         let m = sc.tranche_maturity;

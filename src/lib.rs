@@ -54,6 +54,7 @@
 pub mod curve;
 pub mod dates;
 pub mod error;
+pub mod flags;
 pub mod input;
 pub mod loss;
 pub mod market;

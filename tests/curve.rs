@@ -299,3 +299,57 @@ fn upfront_near_the_recovery_limit_is_fitted_on_the_rising_branch() {
         .unwrap_or_else(|| panic!("{msg}"));
     assert!((stated - peak).abs() < 1e-5, "{stated} vs {peak}");
 }
+
+/// A pool's bumps are bootstrapped again: a par-spread bump moves every
+/// pillar's par spread by exactly the bump (the bootstrap reprices to 1e-8
+/// bp, the contract's tolerance), a zero bump gives back the same hazards,
+/// and a recovery bump reaches both the curve (the same quotes reprice) and
+/// the tranche schedule built on the bumped pool.
+#[test]
+fn pool_bumps_are_bootstrapped_again() {
+    use skewbook::curve::{MarketOptions, Pool, PoolBump};
+    let snap = skewbook::input::snapshot::read_snapshot(concat!(
+        env!("CARGO_MANIFEST_DIR"),
+        "/market-samples/lhy-2026-06-18.csv"
+    ))
+    .unwrap();
+    let pool = Pool::build(&snap.dates[0], &MarketOptions::default(), "lhy").unwrap();
+    let same = pool.bumped(PoolBump::ParSpread(0.0)).unwrap();
+    for (a, b) in pool.pillars.iter().zip(&same.pillars) {
+        assert!(
+            (a.hazard - b.hazard).abs() < 1e-10,
+            "{} vs {}",
+            a.hazard,
+            b.hazard
+        );
+    }
+    let up = pool.bumped(PoolBump::ParSpread(1e-4)).unwrap();
+    for (s0, s1) in pool.par_spreads().iter().zip(up.par_spreads()) {
+        assert!(((s1 - s0) * 1e4 - 1.0).abs() < 1e-8, "{s0} -> {s1}");
+    }
+    assert!(up.hazard.default_probability(5.0) > pool.hazard.default_probability(5.0));
+    let one = pool
+        .bumped(PoolBump::PillarParSpread {
+            pillar: 0,
+            by: 1e-4,
+        })
+        .unwrap();
+    let (s0, s1) = (pool.par_spreads(), one.par_spreads());
+    assert!(((s1[0] - s0[0]) * 1e4 - 1.0).abs() < 1e-8);
+    assert!(((s1[1] - s0[1]) * 1e4).abs() < 1e-8);
+    assert!(pool
+        .bumped(PoolBump::PillarParSpread {
+            pillar: 9,
+            by: 1e-4
+        })
+        .is_err());
+    let rec = pool.bumped(PoolBump::Recovery(0.01)).unwrap();
+    assert!((rec.recovery - pool.recovery - 0.01).abs() < 1e-15);
+    for p in &rec.pillars {
+        assert!((p.repriced - p.quote.exact_in_file_unit()).abs() < 1e-8);
+    }
+    let m = snap.dates[0].tranches[0].maturity;
+    let s = skewbook::tranche::TrancheSchedule::for_pool(&rec, m).unwrap();
+    assert_eq!(s.recovery(), rec.recovery);
+    assert!(pool.bumped(PoolBump::Recovery(0.7)).is_err());
+}

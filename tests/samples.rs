@@ -172,14 +172,14 @@ fn tranches_that_do_not_tile_are_flagged() {
 /// correlations the samples imply and across the search range.
 #[test]
 fn closed_form_and_quadrature_agree_on_every_sample_date() {
-    use skewbook::curve::{MarketOptions, PoolCurves};
+    use skewbook::curve::{MarketOptions, Pool};
     use skewbook::dates::Schedule;
     use skewbook::loss::{Horizon, Method, TrancheBounds};
     let mut checked = 0;
     for file in snapshots() {
         let snap = skewbook::input::snapshot::read_snapshot(&file).unwrap();
         for md in &snap.dates {
-            let c = PoolCurves::build(md, &MarketOptions::default(), &file).unwrap();
+            let c = Pool::build(md, &MarketOptions::default(), &file).unwrap();
             for t in &md.tranches {
                 let s = Schedule::new(md.date, t.maturity);
                 let b = TrancheBounds::new(c.recovery, t.attach, t.detach).unwrap();
@@ -285,18 +285,19 @@ fn whole_pool_tranche_has_no_correlation_and_is_not_unsolved() {
 /// and by quadrature.
 #[test]
 fn tranche_legs_by_closed_form_and_quadrature_agree() {
-    use skewbook::curve::{MarketOptions, PoolCurves};
+    use skewbook::curve::{MarketOptions, Pool};
     use skewbook::loss::Method;
     use skewbook::tranche::TrancheSchedule;
     for file in snapshots() {
         let snap = skewbook::input::snapshot::read_snapshot(&file).unwrap();
         for md in snap.dates.iter().take(3) {
-            let c = PoolCurves::build(md, &MarketOptions::default(), &file).unwrap();
+            let c = Pool::build(md, &MarketOptions::default(), &file).unwrap();
             for t in &md.tranches {
-                let s = TrancheSchedule::new(md.date, t.maturity, &c.discount, &c.hazard);
+                let s = TrancheSchedule::for_pool(&c, t.maturity).unwrap();
+                let base = s.base(t.detach).unwrap();
                 for rho in [1e-4, 0.2, 0.45, 0.9999] {
-                    let a = s.base_legs_by(c.recovery, t.detach, rho, Method::ClosedForm);
-                    let q = s.base_legs_by(c.recovery, t.detach, rho, Method::Quadrature);
+                    let a = s.base_legs_by(&base, rho, Method::ClosedForm);
+                    let q = s.base_legs_by(&base, rho, Method::Quadrature);
                     assert!((a.protection - q.protection).abs() < 1e-10, "{file} {rho}");
                     assert!((a.annuity - q.annuity).abs() < 1e-10, "{file} {rho}");
                 }

@@ -4,9 +4,10 @@
 use chrono::NaiveDate;
 use skewbook::curve::{DiscountCurve, HazardCurve};
 use skewbook::market::{Quote, TrancheQuote};
-use skewbook::report::implied::implied_for_maturity;
+use skewbook::report::implied::ImpliedTranche;
+use skewbook::solve::chain::implied_maturity;
 use skewbook::solve::compound::compound_roots;
-use skewbook::tranche::{TrancheSchedule, TrancheValuer};
+use skewbook::tranche::{Tranche, TrancheSchedule, TrancheValuer};
 
 fn d(y: i32, m: u32, day: u32) -> NaiveDate {
     NaiveDate::from_ymd_opt(y, m, day).unwrap()
@@ -21,23 +22,24 @@ fn schedule(hazard: f64, rate: f64, maturity: NaiveDate) -> TrancheSchedule {
         maturity,
         &DiscountCurve::flat(rate),
         &HazardCurve::flat(hazard),
+        0.4,
     )
+    .unwrap()
 }
 
-fn valuer(
-    s: &TrancheSchedule,
-    recovery: f64,
-    attach: f64,
-    detach: f64,
-    quote: Quote,
-) -> TrancheValuer<'_> {
-    TrancheValuer {
-        schedule: s,
-        recovery,
-        attach,
-        detach,
-        quote,
-    }
+/// The implied rows of one maturity, as the `implied` report shows them.
+fn implied_for_maturity(s: &TrancheSchedule, quotes: &[&TrancheQuote]) -> Vec<ImpliedTranche> {
+    implied_maturity(s, quotes)
+        .unwrap()
+        .tranches
+        .iter()
+        .map(ImpliedTranche::from_implied)
+        .collect()
+}
+
+/// A valuer on a schedule (whose pool recovery is 40%).
+fn valuer(s: &TrancheSchedule, attach: f64, detach: f64, quote: Quote) -> TrancheValuer<'_> {
+    TrancheValuer::new(s, Tranche::new(attach, detach).unwrap(), quote).unwrap()
 }
 
 /// Law of the model: tranches spanning [0, 100%] lose, width-weighted,
@@ -52,7 +54,7 @@ fn capital_structure_losses_add_up_to_the_pool_loss() {
             let total: f64 = bounds
                 .windows(2)
                 .map(|w| {
-                    let v = valuer(&s, 0.4, w[0], w[1], Quote::Spread(0.0));
+                    let v = valuer(&s, w[0], w[1], Quote::Spread(0.0));
                     v.legs_flat(rho).expected_loss * (w[1] - w[0])
                 })
                 .sum();
@@ -68,7 +70,7 @@ fn capital_structure_losses_add_up_to_the_pool_loss() {
 #[test]
 fn whole_pool_tranche_is_correlation_free() {
     let s = schedule(0.02, 0.02, d(2031, 6, 20));
-    let v = valuer(&s, 0.4, 0.0, 1.0, Quote::Spread(0.0));
+    let v = valuer(&s, 0.0, 1.0, Quote::Spread(0.0));
     let a = v.legs_flat(0.05);
     let b = v.legs_flat(0.85);
     assert!((a.protection - b.protection).abs() < 1e-14);
@@ -91,7 +93,7 @@ fn equity_compound_equals_base() {
         },
         line: 2,
     };
-    let out = implied_for_maturity(&s, 0.4, &[&q]);
+    let out = implied_for_maturity(&s, &[&q]);
     assert_eq!(out[0].compound_correlation.len(), 1);
     let (c, b) = (
         out[0].compound_correlation[0],
@@ -122,7 +124,7 @@ fn base_correlation_round_trip() {
             },
             None => Quote::Spread(0.0),
         };
-        let v = valuer(&s, 0.4, a, dd, probe);
+        let v = valuer(&s, a, dd, probe);
         let legs = v.legs(below, rho);
         let quote = match coupon {
             Some(c) => Quote::Upfront {
@@ -141,7 +143,7 @@ fn base_correlation_round_trip() {
         below = rho;
     }
     let refs: Vec<&TrancheQuote> = quotes.iter().collect();
-    let out = implied_for_maturity(&s, 0.4, &refs);
+    let out = implied_for_maturity(&s, &refs);
     for (r, &(_, _, rho, _)) in out.iter().zip(&layers) {
         let b = r.base_correlation.expect("solved");
         assert!((b - rho).abs() < 1e-8, "{} vs {rho}", b);
@@ -156,9 +158,9 @@ fn base_correlation_round_trip() {
 fn mezzanine_with_two_compound_roots() {
     let m = d(2031, 6, 20);
     let s = schedule(0.01, 0.0, m);
-    let probe = valuer(&s, 0.4, 0.03, 0.07, Quote::Spread(0.0));
+    let probe = valuer(&s, 0.03, 0.07, Quote::Spread(0.0));
     let spread = probe.model_spread(&probe.legs_flat(0.05)).unwrap();
-    let v = valuer(&s, 0.4, 0.03, 0.07, Quote::Spread(spread));
+    let v = valuer(&s, 0.03, 0.07, Quote::Spread(spread));
     let sol = compound_roots(&v);
     assert_eq!(sol.roots.len(), 2, "{:?}", sol.roots);
     assert!((sol.roots[0].value - 0.05).abs() < 1e-9);
@@ -174,7 +176,7 @@ fn mezzanine_with_two_compound_roots() {
 fn mezzanine_above_the_peak_has_no_root() {
     let m = d(2031, 6, 20);
     let s = schedule(0.01, 0.0, m);
-    let probe = valuer(&s, 0.4, 0.03, 0.07, Quote::Spread(0.0));
+    let probe = valuer(&s, 0.03, 0.07, Quote::Spread(0.0));
     let peak = (1..200)
         .map(|i| {
             probe
@@ -182,11 +184,11 @@ fn mezzanine_above_the_peak_has_no_root() {
                 .unwrap()
         })
         .fold(0.0, f64::max);
-    let v = valuer(&s, 0.4, 0.03, 0.07, Quote::Spread(peak * 1.05));
+    let v = valuer(&s, 0.03, 0.07, Quote::Spread(peak * 1.05));
     let sol = compound_roots(&v);
     assert!(sol.roots.is_empty());
-    assert!(sol.attainable.1 < peak * 1.05 * 1e4);
-    assert!((sol.attainable.1 / (peak * 1e4) - 1.0).abs() < 1e-3);
+    assert!(sol.attainable.unwrap().1 < peak * 1.05 * 1e4);
+    assert!((sol.attainable.unwrap().1 / (peak * 1e4) - 1.0).abs() < 1e-3);
 }
 
 use proptest::prelude::*;
@@ -208,7 +210,7 @@ proptest! {
         let s = schedule(hazard, 0.02, m);
         let detach = (attach + width).min(1.0);
         let probe_quote = if upfront { Quote::Upfront { upfront: 0.0, coupon: 0.05 } } else { Quote::Spread(0.0) };
-        let probe = valuer(&s, 0.4, attach, detach, probe_quote);
+        let probe = valuer(&s, attach, detach, probe_quote);
         let n = 2000;
         let rhos: Vec<f64> = (0..=n).map(|i| 1e-4 + (0.9999 - 1e-4) * i as f64 / n as f64).collect();
         let model: Vec<f64> = rhos
@@ -222,7 +224,7 @@ proptest! {
         let hi = model.iter().copied().fold(f64::NEG_INFINITY, f64::max);
         let target = lo + position * (hi - lo);
         let quote = if upfront { Quote::Upfront { upfront: target, coupon: 0.05 } } else { Quote::Spread(target) };
-        let v = valuer(&s, 0.4, attach, detach, quote);
+        let v = valuer(&s, attach, detach, quote);
         let dense: Vec<f64> = model
             .windows(2)
             .zip(rhos.windows(2))
@@ -248,15 +250,14 @@ proptest! {
 fn solvers_stay_fast() {
     let m = d(2031, 6, 20);
     let s = schedule(0.01, 0.0, m);
-    let probe = valuer(&s, 0.4, 0.03, 0.07, Quote::Spread(0.0));
+    let probe = valuer(&s, 0.03, 0.07, Quote::Spread(0.0));
     let spread = probe.model_spread(&probe.legs_flat(0.05)).unwrap();
-    let v = valuer(&s, 0.4, 0.03, 0.07, Quote::Spread(spread));
+    let v = valuer(&s, 0.03, 0.07, Quote::Spread(spread));
     for r in compound_roots(&v).roots {
         assert!(r.evaluations <= 6, "{} evaluations", r.evaluations);
     }
     let eq = valuer(
         &s,
-        0.4,
         0.0,
         0.03,
         Quote::Upfront {
@@ -275,8 +276,61 @@ fn solvers_stay_fast() {
         "/market-samples/hgx-2026-06-18.csv"
     ))
     .unwrap();
-    let c = skewbook::curve::PoolCurves::build(&snap.dates[0], &Default::default(), "hgx").unwrap();
+    let c = skewbook::curve::Pool::build(&snap.dates[0], &Default::default(), "hgx").unwrap();
     for p in &c.pillars {
         assert!(p.evaluations <= 20, "{} evaluations", p.evaluations);
     }
+}
+
+/// A schedule on a flat hazard whose pool default probability at the
+/// protection end is exactly `pd` (zero rates).
+fn schedule_with_terminal_pd(pd: f64, maturity: NaiveDate) -> TrancheSchedule {
+    let probe = schedule(0.01, 0.0, maturity);
+    let t_end = -(1.0 - probe.default_probability()).ln() / 0.01;
+    schedule(-(1.0 - pd).ln() / t_end, 0.0, maturity)
+}
+
+/// Expected tranche loss is not clamped: [3%, 7%] valued with its lower
+/// base at rho 0.1 and its upper base at rho 0.6 loses less than nothing,
+/// the signal that such a skew is not arbitrage-free. Check value from the
+/// high-precision large-pool table (PD 5%, R 40%) of the project's
+/// reference values: base EL at 3% and rho 0.1 is 0.03 x 0.738319667699398;
+/// at 7% and rho 0.6 it is 0.03 x 0.335055997825930 + 0.04 x
+/// 0.163656450148538.
+#[test]
+fn negative_tranche_expected_loss_is_reported_as_negative() {
+    let s = schedule_with_terminal_pd(0.05, d(2031, 6, 20));
+    assert!((s.default_probability() - 0.05).abs() < 1e-15);
+    let v = valuer(&s, 0.03, 0.07, Quote::Spread(0.0));
+    let lower = 0.03 * 0.738319667699398;
+    let upper = 0.03 * 0.335055997825930 + 0.04 * 0.163656450148538;
+    let expected = (upper - lower) / 0.04;
+    assert!(expected < -0.13);
+    let legs = v.legs(0.1, 0.6);
+    assert!(
+        (legs.expected_loss - expected).abs() < 1e-12,
+        "{} vs {expected}",
+        legs.expected_loss
+    );
+    let path = v.expected_losses(0.1, 0.6);
+    assert!((path.last().unwrap() - expected).abs() < 1e-12);
+    assert!(path.iter().any(|&x| x < 0.0));
+}
+
+/// A bad detachment given to the library is an error, not zero legs.
+#[test]
+fn bad_bounds_are_errors() {
+    let s = schedule(0.01, 0.0, d(2031, 6, 20));
+    assert!(s.base(1.5).is_err());
+    assert!(s.base(f64::NAN).is_err());
+    assert!(s.base(-0.01).is_err());
+    assert!(Tranche::new(0.0, 1.5).is_err());
+    assert!(Tranche::new(0.0, f64::NAN).is_err());
+    assert!(Tranche::new(0.07, 0.03).is_err());
+    assert!(Tranche::new(0.0, 4.9e-324).is_err(), "subnormal width");
+    assert!(Tranche::new(0.0, 1.0).is_ok());
+    let trade = d(TRADE.0, TRADE.1, TRADE.2);
+    let flat = (DiscountCurve::flat(0.0), HazardCurve::flat(0.01));
+    assert!(TrancheSchedule::new(trade, trade, &flat.0, &flat.1, 0.4).is_err());
+    assert!(TrancheSchedule::new(trade, d(2031, 6, 20), &flat.0, &flat.1, 1.0).is_err());
 }

@@ -13,7 +13,7 @@ use super::DiscountCurve;
 use crate::dates::Schedule;
 use crate::error::{Error, ErrorKind, Problem, Result};
 use crate::market::{IndexQuote, Quote};
-use crate::solve::root::{brent, Tolerance};
+use crate::math::root::{brent, Tolerance};
 use chrono::NaiveDate;
 
 /// Piecewise-constant pool hazard rate in curve time (Act/365F).

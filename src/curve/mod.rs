@@ -8,7 +8,7 @@
 //! - [`discount`]: zero pillars (or a flat rate) to discount factors;
 //! - [`hazard`]: the pool hazard curve and its bootstrap from index quotes;
 //! - [`legs`]: index protection and premium legs integrated exactly;
-//! - [`pool`]: one trade date's recovery and curves together.
+//! - [`pool`]: a pool on one trade date (recovery, curves, quotes) and its bumps.
 
 pub mod discount;
 pub mod hazard;
@@ -18,4 +18,4 @@ pub mod pool;
 
 pub use discount::DiscountCurve;
 pub use hazard::{bootstrap, HazardCurve, Pillar};
-pub use pool::{MarketOptions, PoolCurves};
+pub use pool::{MarketOptions, Pool, PoolBump};

@@ -1,8 +1,9 @@
-//! One trade date's curves: recovery, discount curve and bootstrapped hazard curve.
+//! A pool on one trade date: recovery, discount curve, bootstrapped hazard
+//! curve and the quotes behind it, with one way to bump it.
 
 use super::{bootstrap, DiscountCurve, HazardCurve, Pillar};
 use crate::error::{Error, ErrorKind, Result};
-use crate::market::MarketDate;
+use crate::market::{IndexQuote, MarketDate, Quote};
 use chrono::NaiveDate;
 
 /// Recovery used when neither the snapshot nor the command line gives one.
@@ -57,9 +58,16 @@ impl MarketOptions {
     }
 }
 
-/// The curves of one trade date.
+/// A pool as the pricer sees it on one trade date: recovery, discount
+/// curve, hazard curve, and the index-style quotes it was bootstrapped from.
+///
+/// Built from plain data ([`Pool::from_quotes`]) or a snapshot date
+/// ([`Pool::build`]); [`Pool::bumped`] is the one way to get a bumped copy,
+/// always bootstrapped again, so a recovery bump reaches both the hazard
+/// curve and (through [`crate::tranche::TrancheSchedule::for_pool`]) the
+/// tranche legs.
 #[derive(Debug, Clone, PartialEq)]
-pub struct PoolCurves {
+pub struct Pool {
     /// Trade date.
     pub date: NaiveDate,
     /// Recovery in force (command line, else snapshot, else 40%).
@@ -70,9 +78,33 @@ pub struct PoolCurves {
     pub hazard: HazardCurve,
     /// The bootstrapped pillars, shortest maturity first.
     pub pillars: Vec<Pillar>,
+    /// The quotes the curve was bootstrapped from, shortest maturity first.
+    pub quotes: Vec<IndexQuote>,
+    /// The file the quotes came from, for messages.
+    pub source: String,
 }
 
-impl PoolCurves {
+/// A change to a pool's market, bootstrapped again by [`Pool::bumped`].
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum PoolBump {
+    /// Every pillar's par spread (protection / annuity on today's curve)
+    /// plus this much (a fraction: 0.0001 is 1 bp); the curve is
+    /// bootstrapped again from those par spreads.
+    ParSpread(f64),
+    /// One pillar's par spread plus this much, the others at their par
+    /// spreads: a bucketed spread bump.
+    PillarParSpread {
+        /// Index of the pillar, shortest maturity first.
+        pillar: usize,
+        /// Amount added, a fraction.
+        by: f64,
+    },
+    /// Recovery plus this much (a fraction: 0.01 is one percentage point);
+    /// the curve is bootstrapped again from the same quotes.
+    Recovery(f64),
+}
+
+impl Pool {
     /// Builds the discount curve and bootstraps the hazard curve of one date.
     ///
     /// # Errors
@@ -85,13 +117,99 @@ impl PoolCurves {
         } else {
             DiscountCurve::from_zero_pillars(md.date, &md.zeros, path)?
         };
-        let (hazard, pillars) = bootstrap(md.date, &md.index, &discount, recovery, path)?;
-        Ok(PoolCurves {
-            date: md.date,
+        Pool::from_quotes(md.date, md.index.clone(), recovery, discount, path)
+    }
+
+    /// Bootstraps a pool from its index-style quotes (sorted by maturity)
+    /// with a given recovery and discount curve; `source` names the file in
+    /// messages.
+    ///
+    /// # Errors
+    /// [`ErrorKind::InvalidInput`] for a recovery outside [0, 1);
+    /// [`ErrorKind::Unfittable`] when a quote cannot be fitted.
+    pub fn from_quotes(
+        date: NaiveDate,
+        quotes: Vec<IndexQuote>,
+        recovery: f64,
+        discount: DiscountCurve,
+        source: &str,
+    ) -> Result<Self> {
+        if !(0.0..1.0).contains(&recovery) {
+            return Err(Error::msg(
+                ErrorKind::InvalidInput,
+                format!("{source}: recovery must be in [0, 100%), found {recovery}"),
+            ));
+        }
+        let (hazard, pillars) = bootstrap(date, &quotes, &discount, recovery, source)?;
+        Ok(Pool {
+            date,
             recovery,
             discount,
             hazard,
             pillars,
+            quotes,
+            source: source.to_string(),
         })
+    }
+
+    /// Par spread of each pillar's index contract on this curve
+    /// (protection / annuity), shortest maturity first, fractions.
+    pub fn par_spreads(&self) -> Vec<f64> {
+        self.pillars
+            .iter()
+            .map(|p| p.protection / p.annuity)
+            .collect()
+    }
+
+    /// Pool expected loss to curve time `t`: (1 - R) PD(t).
+    pub fn expected_loss(&self, t: f64) -> f64 {
+        (1.0 - self.recovery) * self.hazard.default_probability(t)
+    }
+
+    /// A copy of the pool with its market bumped and its curve bootstrapped
+    /// again (see [`PoolBump`]).
+    ///
+    /// # Errors
+    /// [`ErrorKind::InvalidInput`] when the bumped recovery leaves [0, 1) or
+    /// the pillar does not exist; [`ErrorKind::Unfittable`] when a bumped
+    /// quote cannot be fitted.
+    pub fn bumped(&self, bump: PoolBump) -> Result<Pool> {
+        let with_spreads = |add: &dyn Fn(usize) -> f64| -> Vec<IndexQuote> {
+            self.quotes
+                .iter()
+                .zip(self.par_spreads())
+                .enumerate()
+                .map(|(i, (q, s))| IndexQuote {
+                    quote: Quote::Spread(s + add(i)),
+                    ..q.clone()
+                })
+                .collect()
+        };
+        let (quotes, recovery) = match bump {
+            PoolBump::ParSpread(by) => (with_spreads(&|_| by), self.recovery),
+            PoolBump::PillarParSpread { pillar, by } => {
+                if pillar >= self.quotes.len() {
+                    return Err(Error::msg(
+                        ErrorKind::InvalidInput,
+                        format!(
+                            "pillar {pillar} does not exist: the pool has {}",
+                            self.quotes.len()
+                        ),
+                    ));
+                }
+                (
+                    with_spreads(&|i| if i == pillar { by } else { 0.0 }),
+                    self.recovery,
+                )
+            }
+            PoolBump::Recovery(by) => (self.quotes.clone(), self.recovery + by),
+        };
+        Pool::from_quotes(
+            self.date,
+            quotes,
+            recovery,
+            self.discount.clone(),
+            &self.source,
+        )
     }
 }

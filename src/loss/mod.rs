@@ -55,13 +55,13 @@
 //! The derivative in `rho` is `-inf` where the true one is (at `rho = 1`,
 //! and at `rho = 0` when `c = G(k)`); a NaN argument gives NaN.
 //!
-//! # Thin tranches: values clamped
+//! # Nothing is clamped
 //!
 //! A tranche value is a difference of two base values divided by the width,
 //! so for a thin senior tranche it can come out a few 1e-17 below zero (or
-//! above one). [`TrancheBounds::expectation`] clamps `loss` and
-//! `outstanding` to `[0, 1]`, and [`BaseTranche::expectation`] clamps to
-//! `[0, K]`; the derivatives are not clamped.
+//! above one). No expectation here is clamped: rounding shows as rounding,
+//! and a negative tranche loss built from two different correlations (a
+//! skew that is not arbitrage-free) shows as the negative number it is.
 //!
 //! # References
 //!
@@ -243,9 +243,9 @@ pub fn expected_min(h: &Horizon, cap: &Cap, rho: f64, method: Method) -> Expecta
 /// pool-notional units, with derivatives in `rho`.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct BaseExpectation {
-    /// `E[min(L, K)]`, in `[0, K]`.
+    /// `E[min(L, K)]`, in `[0, K]` up to rounding.
     pub loss: f64,
-    /// `K - E[min(L, K)] - (E[Rec] - E[min(Rec, 1 - K)])`, in `[0, K]`.
+    /// `K - E[min(L, K)] - (E[Rec] - E[min(Rec, 1 - K)])`, in `[0, K]` up to rounding.
     pub outstanding: f64,
     /// `d loss / d rho`.
     pub dloss_drho: f64,
@@ -257,13 +257,13 @@ pub struct BaseExpectation {
 /// fractions of its width `W = D - A`, with derivatives in `rho`.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct TrancheExpectation {
-    /// `E[min(L, D) - min(L, A)] / W`, clamped to `[0, 1]`.
+    /// `E[min(L, D) - min(L, A)] / W`, in `[0, 1]` up to rounding.
     pub loss: f64,
-    /// `1 - loss - E[min(Rec, 1 - A) - min(Rec, 1 - D)] / W`, clamped to `[0, 1]`.
+    /// `1 - loss - E[min(Rec, 1 - A) - min(Rec, 1 - D)] / W`, in `[0, 1]` up to rounding.
     pub outstanding: f64,
-    /// `d loss / d rho` (per width, not clamped).
+    /// `d loss / d rho` (per width).
     pub dloss_drho: f64,
-    /// `d outstanding / d rho` (per width, not clamped).
+    /// `d outstanding / d rho` (per width).
     pub doutstanding_drho: f64,
 }
 
@@ -324,8 +324,8 @@ impl BaseTranche {
     /// outstanding = K - loss - amortised
     /// ```
     ///
-    /// Both are clamped to `[0, K]` (see the module docs); the derivatives
-    /// come from [`expected_min`].
+    /// Neither is clamped (see the module docs); the derivatives come from
+    /// [`expected_min`].
     ///
     /// # References
     ///
@@ -397,8 +397,8 @@ impl BaseTranche {
         };
         let amortised = r * h.pd - capped_rec;
         BaseExpectation {
-            loss: loss.clamp(0.0, k),
-            outstanding: (k - loss - amortised).clamp(0.0, k),
+            loss,
+            outstanding: k - loss - amortised,
             dloss_drho: dloss,
             doutstanding_drho: dcapped_rec - dloss,
         }
@@ -459,8 +459,8 @@ impl TrancheBounds {
     ///             = 1 - loss - E[min(Rec, 1 - A) - min(Rec, 1 - D)] / W
     /// ```
     ///
-    /// Clamped to `[0, 1]`: thin tranches can come out -1e-17 as
-    /// differences of base values.
+    /// Not clamped: thin tranches can come out -1e-17 as differences of
+    /// base values.
     ///
     /// # References
     ///
@@ -521,8 +521,8 @@ impl TrancheBounds {
     fn combine(&self, lo: BaseExpectation, hi: BaseExpectation) -> TrancheExpectation {
         let w = self.width();
         TrancheExpectation {
-            loss: ((hi.loss - lo.loss) / w).clamp(0.0, 1.0),
-            outstanding: ((hi.outstanding - lo.outstanding) / w).clamp(0.0, 1.0),
+            loss: (hi.loss - lo.loss) / w,
+            outstanding: (hi.outstanding - lo.outstanding) / w,
             dloss_drho: (hi.dloss_drho - lo.dloss_drho) / w,
             doutstanding_drho: (hi.doutstanding_drho - lo.doutstanding_drho) / w,
         }

@@ -19,7 +19,7 @@
 //!   } ] }
 //! ```
 
-use super::curves_for_all_dates;
+use super::pools_for_all_dates;
 use crate::curve::{MarketOptions, Pillar};
 use crate::error::Result;
 use crate::market::Snapshot;
@@ -93,7 +93,7 @@ pub struct CurveReport {
 /// # Errors
 /// Every date's unfittable index quote or bad zero pillar, together.
 pub fn build(snapshot: &Snapshot, opts: &MarketOptions) -> Result<CurveReport> {
-    let dates = curves_for_all_dates(snapshot, opts)?
+    let dates = pools_for_all_dates(snapshot, opts)?
         .into_iter()
         .map(|(_, c)| CurveDate {
             date: c.date.to_string(),

@@ -43,14 +43,14 @@
 
 use super::curve::{quote_label, CurvePillar};
 use super::price::bounds_label;
-use super::{curves_for_all_dates, QuotedTranche};
+use super::{pools_for_all_dates, QuotedTranche};
 use crate::curve::MarketOptions;
 use crate::error::Result;
-use crate::market::{tiles_from_zero, Snapshot, TrancheQuote};
+use crate::flags::Flag;
+use crate::market::Snapshot;
 use crate::output::{csv_num, fixed, fixed_or, pct, sci, wrap, Report, Table};
-use crate::solve::base::{base_correlation_from_scan, BaseSolve, Side};
-use crate::solve::compound::{compound_roots_from_scan, scan_grid, RHO_MAX, RHO_MIN};
-use crate::tranche::{BaseLegs, TrancheSchedule, TrancheValuer};
+use crate::solve::chain::{implied_date, BaseOutcome, DateImplied, TrancheImplied};
+use crate::solve::compound::{RHO_MAX, RHO_MIN};
 use serde::Serialize;
 
 /// One tranche's implied correlations.
@@ -61,8 +61,9 @@ pub struct ImpliedTranche {
     pub tranche: QuotedTranche,
     /// Every compound correlation, ascending.
     pub compound_correlation: Vec<f64>,
-    /// Lowest and highest model quote over the search range, file unit.
-    pub compound_range: [f64; 2],
+    /// Lowest and highest model quote over the search range, file unit;
+    /// null when the model has no quote anywhere in the range.
+    pub compound_range: Option<[f64; 2]>,
     /// Base correlation at the detachment.
     pub base_correlation: Option<f64>,
     /// Why there is no base correlation.
@@ -72,17 +73,66 @@ pub struct ImpliedTranche {
     /// Expected tranche loss off the base curve, percent of tranche notional.
     pub expected_loss_pct: Option<f64>,
     /// Flags (see the module docs).
-    pub flags: Vec<&'static str>,
+    pub flags: Vec<Flag>,
+    /// Whether the quote has a solution missing (not printed).
+    #[serde(skip)]
+    pub unsolved: bool,
 }
 
 impl ImpliedTranche {
     /// Whether this quote has a solution missing (drives exit status 1).
     pub fn unsolved(&self) -> bool {
-        if self.flags.contains(&"no_correlation_dependence") {
-            return false;
+        self.unsolved
+    }
+
+    /// The report row of one tranche's implied data.
+    pub fn from_implied(t: &TrancheImplied) -> Self {
+        let label = |a: f64, d: f64| bounds_label(pct(a), pct(d));
+        let quote_text = fixed(t.quote.quote.in_file_unit(), 4);
+        let range_text =
+            |q: Option<f64>| q.map_or("no quote (no annuity left)".to_string(), |q| fixed(q, 4));
+        let base_note = match &t.base {
+            BaseOutcome::Solved { .. } => None,
+            BaseOutcome::Top { .. } | BaseOutcome::WholePool => {
+                Some("[0, 100%] does not depend on correlation".to_string())
+            }
+            BaseOutcome::NotTiled => Some(
+                "the tranches of this maturity do not tile the capital structure from 0%"
+                    .to_string(),
+            ),
+            BaseOutcome::NoSolution { range, .. } => Some(format!(
+                "no base correlation in [{RHO_MIN}, {RHO_MAX}] reaches the quote {quote_text}: the model gives {} at rho {RHO_MIN} and {} at rho {RHO_MAX}",
+                range_text(range.0),
+                range_text(range.1)
+            )),
+            BaseOutcome::SolverFailed { bracket } => Some(format!(
+                "a base correlation lies between {} and {} but the solver stopped without converging",
+                fixed(bracket.0, 6),
+                fixed(bracket.1, 6)
+            )),
+            BaseOutcome::ChainBroken { at } => Some(format!(
+                "tranche {} below has no base correlation",
+                label(at.attach(), at.detach())
+            )),
+        };
+        let compound_range = match (&t.compound, t.whole_pool_quote) {
+            (Some(c), _) => c.attainable.map(|(lo, hi)| [lo, hi]),
+            (None, q) => Some(q.map_or([0.0, 0.0], |q| [q, q])),
+        };
+        ImpliedTranche {
+            tranche: QuotedTranche::from(&t.quote),
+            compound_correlation: t
+                .compound
+                .as_ref()
+                .map_or(Vec::new(), |c| c.roots.iter().map(|r| r.value).collect()),
+            compound_range,
+            base_correlation: t.base_correlation(),
+            base_note,
+            base_reprice_error: t.repriced.and_then(|r| r.error),
+            expected_loss_pct: t.repriced.map(|r| r.expected_loss * 100.0),
+            flags: t.flags.clone(),
+            unsolved: t.unsolved(),
         }
-        self.compound_correlation.is_empty()
-            || (self.base_correlation.is_none() && !self.flags.contains(&"top_tranche"))
     }
 }
 
@@ -97,6 +147,18 @@ pub struct ImpliedDate {
     pub index: Vec<CurvePillar>,
     /// Tranches by maturity then attachment.
     pub tranches: Vec<ImpliedTranche>,
+}
+
+impl ImpliedDate {
+    /// The report of one date's implied data.
+    pub fn from_implied(d: &DateImplied) -> Self {
+        ImpliedDate {
+            date: d.pool.date.to_string(),
+            recovery: d.pool.recovery,
+            index: d.pool.pillars.iter().map(CurvePillar::from).collect(),
+            tranches: d.tranches().map(ImpliedTranche::from_implied).collect(),
+        }
+    }
 }
 
 /// The whole `implied` report.
@@ -117,152 +179,6 @@ impl ImpliedReport {
     }
 }
 
-fn is_top(t: &TrancheQuote) -> bool {
-    t.detach >= 1.0 - 1e-12
-}
-
-/// Implied correlations for the tranches of one maturity (sorted by attachment).
-pub fn implied_for_maturity(
-    schedule: &TrancheSchedule,
-    recovery: f64,
-    tranches: &[&TrancheQuote],
-) -> Vec<ImpliedTranche> {
-    let tiles = tiles_from_zero(tranches);
-    // Each bound's base-tranche legs on the scan grid, shared by the
-    // tranches above and below it (compound scans and base brackets).
-    let grid = scan_grid();
-    let mut scans: Vec<(f64, Vec<BaseLegs>)> = Vec::new();
-    for t in tranches {
-        for k in [t.attach, t.detach] {
-            if !scans.iter().any(|(b, _)| *b == k) {
-                let legs = grid
-                    .iter()
-                    .map(|&r| schedule.base_legs(recovery, k, r))
-                    .collect();
-                scans.push((k, legs));
-            }
-        }
-    }
-    let scan_of = |k: f64| {
-        &scans
-            .iter()
-            .find(|(b, _)| *b == k)
-            .expect("every bound was scanned above")
-            .1
-    };
-    // Base correlation at the previous detachment; None once the chain breaks.
-    let mut chain: Option<f64> = Some(0.0);
-    let mut broken_at: Option<String> = None;
-    let mut out = Vec::with_capacity(tranches.len());
-    for t in tranches {
-        let v = TrancheValuer {
-            schedule,
-            recovery,
-            attach: t.attach,
-            detach: t.detach,
-            quote: t.quote,
-        };
-        let mut flags = Vec::new();
-        if t.attach <= 0.0 && is_top(t) {
-            // [0, 100%] is the whole pool: no correlation moves it.
-            let legs = v.legs_flat(0.5);
-            let q = v.model_quote(&legs);
-            out.push(ImpliedTranche {
-                tranche: QuotedTranche::from(*t),
-                compound_correlation: Vec::new(),
-                compound_range: q.map_or([0.0, 0.0], |q| [q, q]),
-                base_correlation: None,
-                base_note: Some("[0, 100%] does not depend on correlation".to_string()),
-                base_reprice_error: q.map(|q| q - t.quote.exact_in_file_unit()),
-                expected_loss_pct: Some(legs.expected_loss * 100.0),
-                flags: vec!["no_correlation_dependence"],
-            });
-            continue;
-        }
-        let (lower_scan, upper_scan) = (scan_of(t.attach), scan_of(t.detach));
-        let flat: Vec<_> = lower_scan
-            .iter()
-            .zip(upper_scan)
-            .map(|(a, d)| v.combine(a, d, true))
-            .collect();
-        let comp = compound_roots_from_scan(&v, &flat);
-        match comp.roots.len() {
-            0 => flags.push("no_compound_root"),
-            2.. => flags.push("two_compound_roots"),
-            _ => {}
-        }
-        if comp.tangent {
-            flags.push("compound_tangent");
-        }
-        let label = bounds_label(pct(t.attach), pct(t.detach));
-        let (mut base, mut note, mut reprice, mut el) = (None, None, None, None);
-        let reprice_at = |rho_a: f64, rho_d: f64| {
-            let legs = v.legs(rho_a, rho_d);
-            let err = v
-                .model_quote(&legs)
-                .map(|q| q - t.quote.exact_in_file_unit());
-            (err, legs.expected_loss * 100.0)
-        };
-        if !tiles {
-            flags.push("bounds_do_not_tile");
-            note = Some(
-                "the tranches of this maturity do not tile the capital structure from 0%"
-                    .to_string(),
-            );
-        } else if let Some(rho_a) = chain {
-            if is_top(t) {
-                flags.push("top_tranche");
-                note = Some("[0, 100%] does not depend on correlation".to_string());
-                let (err, loss) = reprice_at(rho_a, rho_a);
-                reprice = err;
-                el = Some(loss);
-            } else {
-                let lower = schedule.base_legs(recovery, t.attach, rho_a);
-                match base_correlation_from_scan(&v, &lower, upper_scan) {
-                    BaseSolve::Solved(s) => {
-                        base = Some(s.value);
-                        let (err, loss) = reprice_at(rho_a, s.value);
-                        reprice = err;
-                        el = Some(loss);
-                        chain = Some(s.value);
-                    }
-                    BaseSolve::NoSolution { side, range } => {
-                        flags.push(match side {
-                            Side::Above => "base_quote_above_range",
-                            Side::Below => "base_quote_below_range",
-                        });
-                        note = Some(format!(
-                            "no base correlation in [{RHO_MIN}, {RHO_MAX}] reaches the quote {}: the model gives {} at rho {RHO_MIN} and {} at rho {RHO_MAX}",
-                            fixed(t.quote.in_file_unit(), 4),
-                            fixed(range.0, 4),
-                            fixed(range.1, 4)
-                        ));
-                        chain = None;
-                        broken_at = Some(label.clone());
-                    }
-                }
-            }
-        } else {
-            flags.push("base_chain_broken");
-            note = Some(format!(
-                "tranche {} below has no base correlation",
-                broken_at.clone().unwrap_or_default()
-            ));
-        }
-        out.push(ImpliedTranche {
-            tranche: QuotedTranche::from(*t),
-            compound_correlation: comp.roots.iter().map(|r| r.value).collect(),
-            compound_range: [comp.attainable.0, comp.attainable.1],
-            base_correlation: base,
-            base_note: note,
-            base_reprice_error: reprice,
-            expected_loss_pct: el,
-            flags,
-        });
-    }
-    out
-}
-
 /// Implied correlations of every tranche of every date.
 ///
 /// # Errors
@@ -270,43 +186,10 @@ pub fn implied_for_maturity(
 /// Tranches with no solution are not errors: they are flagged in the report.
 pub fn build(snapshot: &Snapshot, opts: &MarketOptions) -> Result<ImpliedReport> {
     let mut dates = Vec::with_capacity(snapshot.dates.len());
-    for (md, c) in curves_for_all_dates(snapshot, opts)? {
-        let mut tranches = Vec::with_capacity(md.tranches.len());
-        let mut i = 0;
-        while i < md.tranches.len() {
-            let m = md.tranches[i].maturity;
-            let group: Vec<&TrancheQuote> = md.tranches[i..]
-                .iter()
-                .take_while(|t| t.maturity == m)
-                .collect();
-            i += group.len();
-            let schedule = TrancheSchedule::new(md.date, m, &c.discount, &c.hazard);
-            tranches.extend(implied_for_maturity(&schedule, c.recovery, &group));
-        }
-        dates.push(ImpliedDate {
-            date: md.date.to_string(),
-            recovery: c.recovery,
-            index: c.pillars.iter().map(CurvePillar::from).collect(),
-            tranches,
-        });
+    for (md, pool) in pools_for_all_dates(snapshot, opts)? {
+        dates.push(ImpliedDate::from_implied(&implied_date(&md, pool)?));
     }
     Ok(ImpliedReport { dates })
-}
-
-/// The table's short form of a flag (CSV and JSON carry the full names).
-fn short_flag(flag: &str) -> &str {
-    match flag {
-        "no_compound_root" => "no root",
-        "two_compound_roots" => "2 roots",
-        "compound_tangent" => "tangent",
-        "base_quote_above_range" => "above range",
-        "base_quote_below_range" => "below range",
-        "base_chain_broken" => "chain broken",
-        "bounds_do_not_tile" => "gaps",
-        "top_tranche" => "top",
-        "no_correlation_dependence" => "whole pool",
-        other => other,
-    }
 }
 
 fn pct_list(xs: &[f64]) -> String {
@@ -358,21 +241,21 @@ impl Report for ImpliedReport {
                         fixed_or(r.base_correlation.map(|b| b * 100.0), 2, "-"),
                         fixed_or(r.expected_loss_pct, 2, "-"),
                         r.base_reprice_error.map_or("-".to_string(), |e| sci(e, 0)),
-                        r.flags
-                            .iter()
-                            .map(|f| short_flag(f))
-                            .collect::<Vec<_>>()
-                            .join(","),
+                        crate::flags::join(&r.flags, true),
                     ]);
                     if r.compound_correlation.is_empty() {
+                        let span = r.compound_range.map_or(
+                            "the model has no quote".to_string(),
+                            |[lo, hi]| {
+                                format!("model quotes span {} to {}", fixed(lo, 4), fixed(hi, 4))
+                            },
+                        );
                         t.notes.extend(wrap(&format!(
-                            "{}: no compound correlation; model quotes span {} to {} over rho in [{RHO_MIN}, {RHO_MAX}]",
+                            "{}: no compound correlation; {span} over rho in [{RHO_MIN}, {RHO_MAX}]",
                             bounds_label(r.tranche.attach_pct, r.tranche.detach_pct),
-                            fixed(r.compound_range[0], 4),
-                            fixed(r.compound_range[1], 4)
                         ), 79, 4));
                     }
-                    if let (Some(n), false) = (&r.base_note, r.flags.contains(&"top_tranche")) {
+                    if let (Some(n), false) = (&r.base_note, r.flags.contains(&Flag::TopTranche)) {
                         t.notes.extend(wrap(
                             &format!(
                                 "{}: {n}",
@@ -413,12 +296,12 @@ impl Report for ImpliedReport {
                     r.compound_correlation.len().to_string(),
                     csv_num(r.compound_correlation.first().copied()),
                     csv_num(r.compound_correlation.get(1).copied()),
-                    csv_num(Some(r.compound_range[0])),
-                    csv_num(Some(r.compound_range[1])),
+                    csv_num(r.compound_range.map(|r| r[0])),
+                    csv_num(r.compound_range.map(|r| r[1])),
                     csv_num(r.base_correlation),
                     csv_num(r.base_reprice_error),
                     csv_num(r.expected_loss_pct),
-                    r.flags.join(";"),
+                    crate::flags::join(&r.flags, false),
                     r.base_note.clone().unwrap_or_default(),
                 ]);
                 t.push(row);

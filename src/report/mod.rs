@@ -11,25 +11,26 @@ pub mod loss;
 pub mod price;
 pub mod realworld;
 
-use crate::curve::{MarketOptions, PoolCurves};
+use crate::curve::{MarketOptions, Pool};
 use crate::error::{Error, Result};
 use crate::market::{MarketDate, Snapshot, TrancheQuote};
 use crate::output::pct;
 use serde::Serialize;
 
-/// Builds the curves of every date of a snapshot, collecting every date's
-/// error into one [`Error`] so a history shows all its bad dates at once.
+/// Builds the index pool (curves) of every date of a snapshot, collecting
+/// every date's error into one [`Error`] so a history shows all its bad
+/// dates at once.
 ///
 /// # Errors
 /// The first error's kind, with the problems of every failing date.
-pub fn curves_for_all_dates(
+pub fn pools_for_all_dates(
     snapshot: &Snapshot,
     opts: &MarketOptions,
-) -> Result<Vec<(MarketDate, PoolCurves)>> {
+) -> Result<Vec<(MarketDate, Pool)>> {
     let mut out = Vec::with_capacity(snapshot.dates.len());
     let mut failure: Option<Error> = None;
     for md in &snapshot.dates {
-        match PoolCurves::build(md, opts, &snapshot.path) {
+        match Pool::build(md, opts, &snapshot.path) {
             Ok(c) => out.push((md.clone(), c)),
             Err(e) => match &mut failure {
                 None => failure = Some(e),

@@ -17,12 +17,12 @@
 //!   } ] }
 //! ```
 
-use super::{curves_for_all_dates, QuotedTranche};
+use super::{pools_for_all_dates, QuotedTranche};
 use crate::curve::MarketOptions;
 use crate::error::{Error, ErrorKind, Result};
 use crate::market::{Snapshot, TrancheQuote};
 use crate::output::{csv_num, fixed, fixed_or, pct, Report, Table};
-use crate::tranche::{TrancheSchedule, TrancheValuer};
+use crate::tranche::{Tranche, TrancheSchedule, TrancheValuer};
 use serde::Serialize;
 
 /// One tranche priced at a flat correlation.
@@ -67,21 +67,17 @@ pub struct PriceReport {
 }
 
 /// Prices one tranche at a flat correlation on its schedule.
+///
+/// # Errors
+/// [`ErrorKind::InvalidInput`] for bounds the library cannot price.
 pub fn price_tranche(
     schedule: &TrancheSchedule,
-    recovery: f64,
     t: &TrancheQuote,
     rho: f64,
-) -> PricedTranche {
-    let v = TrancheValuer {
-        schedule,
-        recovery,
-        attach: t.attach,
-        detach: t.detach,
-        quote: t.quote,
-    };
+) -> Result<PricedTranche> {
+    let v = TrancheValuer::new(schedule, Tranche::new(t.attach, t.detach)?, t.quote)?;
     let legs = v.legs_flat(rho);
-    PricedTranche {
+    Ok(PricedTranche {
         tranche: QuotedTranche::from(t),
         model_upfront_pct: v.model_upfront(&legs) * 100.0,
         model_spread_bp: v.model_spread(&legs).map(|s| s * 1e4),
@@ -89,7 +85,7 @@ pub fn price_tranche(
         protection_leg: legs.protection,
         premium_annuity: legs.annuity,
         value: v.value(&legs),
-    }
+    })
 }
 
 /// Prices every tranche of every date at correlation `rho`.
@@ -104,20 +100,16 @@ pub fn build(snapshot: &Snapshot, opts: &MarketOptions, rho: f64) -> Result<Pric
         ));
     }
     let mut dates = Vec::new();
-    for (md, c) in curves_for_all_dates(snapshot, opts)? {
+    for (md, c) in pools_for_all_dates(snapshot, opts)? {
         let mut tranches = Vec::with_capacity(md.tranches.len());
         let mut schedule: Option<TrancheSchedule> = None;
         for t in &md.tranches {
             if schedule.as_ref().is_none_or(|s| s.maturity() != t.maturity) {
-                schedule = Some(TrancheSchedule::new(
-                    md.date,
-                    t.maturity,
-                    &c.discount,
-                    &c.hazard,
-                ));
+                schedule = Some(TrancheSchedule::for_pool(&c, t.maturity)?);
             }
-            let s = schedule.as_ref().expect("just set");
-            tranches.push(price_tranche(s, c.recovery, t, rho));
+            if let Some(s) = schedule.as_ref() {
+                tranches.push(price_tranche(s, t, rho)?);
+            }
         }
         dates.push(PriceDate {
             date: md.date.to_string(),

@@ -174,7 +174,8 @@ fn reading(pd: Option<(f64, f64)>, rho: Option<(f64, f64)>) -> String {
 /// base correlations, and the ratios risk-neutral / real-world.
 ///
 /// # Errors
-/// Whatever [`crate::report::implied::build`] returns for that date.
+/// Curve errors of that date (see [`crate::curve::Pool::build`]) and
+/// whatever [`crate::solve::implied_date`] returns.
 pub fn add_risk_neutral(
     report: &mut RealworldReport,
     snapshot: &crate::market::Snapshot,
@@ -183,24 +184,20 @@ pub fn add_risk_neutral(
     let Some(last) = snapshot.dates.last() else {
         return Ok(());
     };
-    let one = crate::market::Snapshot {
-        path: snapshot.path.clone(),
-        dates: vec![last.clone()],
-        warnings: vec![],
-    };
-    let curves = crate::curve::PoolCurves::build(last, opts, &snapshot.path)?;
-    let implied = crate::report::implied::build(&one, opts)?;
-    let d = &implied.dates[0];
-    let pd_one_year = curves.hazard.default_probability(1.0);
+    let pool = crate::curve::Pool::build(last, opts, &snapshot.path)?;
+    let d = crate::solve::implied_date(last, pool)?;
+    let pd_one_year = d.pool.hazard.default_probability(1.0);
     let tranches: Vec<RiskNeutralTranche> = d
-        .tranches
-        .iter()
+        .tranches()
         .map(|t| RiskNeutralTranche {
-            maturity: t.tranche.maturity.clone(),
-            attach_pct: t.tranche.attach_pct,
-            detach_pct: t.tranche.detach_pct,
-            compound_correlation: t.compound_correlation.clone(),
-            base_correlation: t.base_correlation,
+            maturity: t.quote.maturity.to_string(),
+            attach_pct: crate::output::pct(t.quote.attach),
+            detach_pct: crate::output::pct(t.quote.detach),
+            compound_correlation: t
+                .compound
+                .as_ref()
+                .map_or(Vec::new(), |c| c.roots.iter().map(|r| r.value).collect()),
+            base_correlation: t.base_correlation(),
         })
         .collect();
     let mut ratios = Vec::new();
@@ -242,10 +239,11 @@ pub fn add_risk_neutral(
     let reading = reading(pd_span, rho_span);
     report.risk_neutral = Some(RiskNeutral {
         snapshot: snapshot.path.clone(),
-        date: d.date.clone(),
-        recovery: d.recovery,
+        date: d.pool.date.to_string(),
+        recovery: d.pool.recovery,
         pd_one_year,
-        index: curves
+        index: d
+            .pool
             .pillars
             .iter()
             .map(|p| RiskNeutralPillar {

@@ -19,7 +19,7 @@
 //! broken). The value is never clamped to the end of the range.
 
 use super::compound::{scan_grid, CORRELATION_TOLERANCE, RHO_MAX, RHO_MIN};
-use super::root::{newton_bracketed, Solution};
+use crate::math::root::{newton_bracketed, Solution};
 use crate::tranche::{BaseLegs, TrancheValuer};
 
 /// Which side of the attainable range a quote fell on.
@@ -41,8 +41,16 @@ pub enum BaseSolve {
     NoSolution {
         /// Where the quote lies against the range.
         side: Side,
-        /// Model quotes (file unit) at rho = 1e-4 and at rho = 0.9999.
-        range: (f64, f64),
+        /// Model quotes (file unit) at rho = 1e-4 and at rho = 0.9999;
+        /// `None` where the model has no quote (a spread quote on a tranche
+        /// with no annuity left).
+        range: (Option<f64>, Option<f64>),
+    },
+    /// The value changes sign in `bracket` but the solver stopped without
+    /// converging: a base correlation exists there and is not reported.
+    Failed {
+        /// The correlations between which the root lies.
+        bracket: (f64, f64),
     },
 }
 
@@ -54,11 +62,8 @@ pub enum BaseSolve {
 /// find rho_D:  (prot_D(rho_D) - prot_A(rho_A)) - c (ann_D(rho_D) - ann_A(rho_A)) - u DF(ts) W = 0
 /// ```
 pub fn base_correlation(v: &TrancheValuer, rho_attach: f64) -> BaseSolve {
-    let lower = v.schedule.base_legs(v.recovery, v.attach, rho_attach);
-    let ends = [
-        v.schedule.base_legs(v.recovery, v.detach, RHO_MIN),
-        v.schedule.base_legs(v.recovery, v.detach, RHO_MAX),
-    ];
+    let lower = v.lower_legs(rho_attach);
+    let ends = [v.upper_legs(RHO_MIN), v.upper_legs(RHO_MAX)];
     solve_on(v, &lower, &[RHO_MIN, RHO_MAX], &ends)
 }
 
@@ -81,11 +86,10 @@ fn solve_on(v: &TrancheValuer, lower: &BaseLegs, rhos: &[f64], upper: &[BaseLegs
     for i in 0..f.len() - 1 {
         if f[i] * f[i + 1] <= 0.0 {
             let fdf = |rho: f64| {
-                let u = v.schedule.base_legs(v.recovery, v.detach, rho);
-                let l = v.combine(lower, &u, false);
+                let l = v.combine(lower, &v.upper_legs(rho), false);
                 (v.value(&l), v.d_value(&l))
             };
-            if let Ok(s) = newton_bracketed(
+            return match newton_bracketed(
                 fdf,
                 rhos[i],
                 rhos[i + 1],
@@ -93,16 +97,19 @@ fn solve_on(v: &TrancheValuer, lower: &BaseLegs, rhos: &[f64], upper: &[BaseLegs
                 f[i + 1],
                 CORRELATION_TOLERANCE,
             ) {
-                return BaseSolve::Solved(s);
-            }
+                Ok(s) => BaseSolve::Solved(s),
+                Err(_) => BaseSolve::Failed {
+                    bracket: (rhos[i], rhos[i + 1]),
+                },
+            };
         }
     }
-    let q_lo = v.model_quote(&legs[0]).unwrap_or(f64::INFINITY);
-    let q_hi = v
-        .model_quote(&legs[legs.len() - 1])
-        .unwrap_or(f64::INFINITY);
+    let q_lo = v.model_quote(&legs[0]);
+    let q_hi = v.model_quote(&legs[legs.len() - 1]);
     let quote = v.quote.in_file_unit();
-    let side = if quote > q_lo.max(q_hi) {
+    // A missing model quote (no annuity) is a par spread beyond every number.
+    let highest = q_lo.unwrap_or(f64::MAX).max(q_hi.unwrap_or(f64::MAX));
+    let side = if quote > highest {
         Side::Above
     } else {
         Side::Below

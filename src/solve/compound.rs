@@ -17,7 +17,7 @@
 //!    sign towards zero hides an extremum: it is located (Brent on the
 //!    derivative) and, if the value there crosses zero, both roots are polished.
 
-use super::root::{brent, newton_bracketed, Solution, Tolerance};
+use crate::math::root::{brent, newton_bracketed, Solution, Tolerance};
 use crate::tranche::{TrancheLegs, TrancheValuer};
 
 /// Lower end of the correlation search.
@@ -43,9 +43,20 @@ pub struct CompoundSolve {
     /// Smallest and largest model quote (file unit) seen over the search
     /// range: scan points and located extrema. For an upfront quote the
     /// extremes are exact; for a spread quote they are the scan's.
-    pub attainable: (f64, f64),
+    /// `None` when the model has no quote anywhere in the range (a spread
+    /// quote on a tranche with no annuity).
+    pub attainable: Option<(f64, f64)>,
     /// Whether a root is a tangency (a double root at an extremum).
     pub tangent: bool,
+    /// Whether the value is zero at every scanned correlation with zero
+    /// slope: the tranche does not depend on correlation at this quote
+    /// (for example [60%, 100%] at 40% recovery and a zero spread), so it
+    /// has no roots rather than a root everywhere.
+    pub flat: bool,
+    /// Solves that stopped without converging (a sign change that could
+    /// not be polished, an extremum that could not be located): each may
+    /// hide a root that is not listed.
+    pub failures: usize,
 }
 
 /// The correlations of the scan: rho = sin²θ, θ uniform.
@@ -106,21 +117,39 @@ pub fn compound_roots_from_scan(v: &TrancheValuer, scan: &[TrancheLegs]) -> Comp
             }
         })
         .collect();
+    let flat = samples
+        .iter()
+        .all(|s| s.value.abs() < CORRELATION_TOLERANCE.residual && s.slope.abs() < 1e-12);
+    if flat {
+        return CompoundSolve {
+            roots: Vec::new(),
+            attainable: (lo_q <= hi_q).then_some((lo_q, hi_q)),
+            tangent: false,
+            flat,
+            failures: 0,
+        };
+    }
     let fdf = |rho: f64| {
         let legs = v.legs_flat(rho);
         (v.value(&legs), v.d_value(&legs))
     };
-    let polish = |a: &Sample, b: &Sample| {
-        newton_bracketed(fdf, a.rho, b.rho, a.value, b.value, CORRELATION_TOLERANCE).ok()
+    let mut failures = 0;
+    let mut polish = |a: &Sample, b: &Sample| {
+        let s = newton_bracketed(fdf, a.rho, b.rho, a.value, b.value, CORRELATION_TOLERANCE);
+        if s.is_err() {
+            failures += 1;
+        }
+        s.ok()
     };
     let mut roots: Vec<Solution> = Vec::new();
     let mut tangent = false;
+    let mut extremum_failures = 0;
     if samples[0].value == 0.0 {
         roots.push(Solution {
             value: samples[0].rho,
             evaluations: 0,
             residual: 0.0,
-            termination: super::root::Termination::Residual,
+            termination: crate::math::root::Termination::Residual,
         });
     }
     for w in samples.windows(2) {
@@ -145,10 +174,14 @@ pub fn compound_roots_from_scan(v: &TrancheValuer, scan: &[TrancheLegs]) -> Comp
             max_iterations: 100,
         };
         let Ok(ext) = brent(slope, a.rho, b.rho, tol) else {
+            extremum_failures += 1;
             continue;
         };
         let legs = v.legs_flat(ext.value);
-        note(&legs);
+        if let Some(q) = v.model_quote(&legs) {
+            lo_q = lo_q.min(q);
+            hi_q = hi_q.max(q);
+        }
         let m = Sample {
             rho: ext.value,
             value: v.value(&legs),
@@ -160,7 +193,7 @@ pub fn compound_roots_from_scan(v: &TrancheValuer, scan: &[TrancheLegs]) -> Comp
                 value: m.rho,
                 evaluations: ext.evaluations,
                 residual: m.value,
-                termination: super::root::Termination::Residual,
+                termination: crate::math::root::Termination::Residual,
             });
         } else if m.value * a.value < 0.0 {
             roots.extend(polish(a, &m));
@@ -171,7 +204,9 @@ pub fn compound_roots_from_scan(v: &TrancheValuer, scan: &[TrancheLegs]) -> Comp
     roots.dedup_by(|x, y| (x.value - y.value).abs() < 1e-10);
     CompoundSolve {
         roots,
-        attainable: (lo_q, hi_q),
+        attainable: (lo_q <= hi_q).then_some((lo_q, hi_q)),
         tangent,
+        flat,
+        failures: failures + extremum_failures,
     }
 }

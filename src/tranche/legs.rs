@@ -11,14 +11,15 @@
 //! Both are linear in EL and N, so their derivatives in rho come from the
 //! derivatives of EL and N at each date.
 
-use crate::curve::{DiscountCurve, HazardCurve};
+use crate::curve::{DiscountCurve, HazardCurve, Pool};
 use crate::dates::Schedule;
+use crate::error::{Error, ErrorKind, Result};
 use crate::loss::{BaseExpectation, BaseTranche, Correlation, Horizon, Method};
-use crate::math::normal::inv_cdf;
 use chrono::NaiveDate;
 
-/// Everything about a tranche's schedule that does not depend on correlation:
-/// discount factors, accruals and the pool default probability at each date.
+/// Everything about a tranche's schedule on one pool that does not depend
+/// on correlation: discount factors, accruals, the pool's recovery and its
+/// default probability at each date.
 #[derive(Debug, Clone, PartialEq)]
 pub struct TrancheSchedule {
     /// DF(pay_i) per period.
@@ -31,6 +32,8 @@ pub struct TrancheSchedule {
     df_settlement: f64,
     /// Maturity.
     maturity: NaiveDate,
+    /// Pool recovery.
+    recovery: f64,
 }
 
 /// Legs of a base tranche [0, K] in pool-notional units, with their
@@ -49,38 +52,70 @@ pub struct BaseLegs {
     pub expected_loss: f64,
 }
 
-/// A horizon for a default probability the hazard curve produced (always in [0, 1]).
-fn horizon(pd: f64) -> Horizon {
-    let pd = pd.clamp(0.0, 1.0);
-    Horizon { pd, c: inv_cdf(pd) }
-}
-
 impl TrancheSchedule {
-    /// Precomputes the schedule of a tranche traded on `trade` maturing on `maturity`.
+    /// Precomputes the schedule of a tranche on `pool` maturing on `maturity`.
+    ///
+    /// # Errors
+    /// As [`TrancheSchedule::new`].
+    pub fn for_pool(pool: &Pool, maturity: NaiveDate) -> Result<Self> {
+        TrancheSchedule::new(
+            pool.date,
+            maturity,
+            &pool.discount,
+            &pool.hazard,
+            pool.recovery,
+        )
+    }
+
+    /// Precomputes the schedule of a tranche traded on `trade` maturing on
+    /// `maturity`, on a pool with these curves and recovery.
+    ///
+    /// # Errors
+    /// [`ErrorKind::InvalidInput`] when the maturity is not after the trade
+    /// date, the recovery is outside [0, 1), or the hazard curve gives a
+    /// default probability outside [0, 1].
     pub fn new(
         trade: NaiveDate,
         maturity: NaiveDate,
         discount: &DiscountCurve,
         hazard: &HazardCurve,
-    ) -> Self {
+        recovery: f64,
+    ) -> Result<Self> {
+        if maturity <= trade {
+            return Err(Error::msg(
+                ErrorKind::InvalidInput,
+                format!(
+                    "tranche schedule: maturity {maturity} is not after the trade date {trade}"
+                ),
+            ));
+        }
+        if !(0.0..1.0).contains(&recovery) {
+            return Err(Error::msg(
+                ErrorKind::InvalidInput,
+                format!("tranche schedule: expected a recovery in [0, 1), found {recovery}"),
+            ));
+        }
         let s = Schedule::new(trade, maturity);
         let mut horizons = Vec::with_capacity(s.periods.len() + 1);
-        horizons.push(horizon(hazard.default_probability(s.periods[0].t_start)));
+        horizons.push(Horizon::new(
+            hazard.default_probability(s.periods[0].t_start),
+        )?);
         let mut df_pay = Vec::with_capacity(s.periods.len());
         let mut half_accrual_df = Vec::with_capacity(s.periods.len());
         for p in &s.periods {
             let df = discount.df(p.t_pay);
             df_pay.push(df);
             half_accrual_df.push(0.5 * p.accrual * df);
-            horizons.push(horizon(hazard.default_probability(p.t_end)));
+            horizons.push(Horizon::new(hazard.default_probability(p.t_end))?);
         }
-        TrancheSchedule {
+        Ok(TrancheSchedule {
             df_pay,
             half_accrual_df,
             horizons,
             df_settlement: discount.df(s.settlement_time()),
             maturity,
-        }
+            recovery,
+        })
     }
 
     /// DF at the upfront's settlement date.
@@ -93,29 +128,36 @@ impl TrancheSchedule {
         self.maturity
     }
 
+    /// The pool's recovery.
+    pub fn recovery(&self) -> f64 {
+        self.recovery
+    }
+
     /// Pool default probability at the protection end.
     pub fn default_probability(&self) -> f64 {
         self.horizons.last().map_or(0.0, |h| h.pd)
     }
 
-    /// Legs of the base tranche [0, `detach`] at correlation `rho`, pool
-    /// units, by the closed form. `detach = 0` gives all zeros.
+    /// The base tranche [0, `detach`] on this schedule's pool.
     ///
-    /// `recovery` in [0, 1) and `detach` in [0, 1] are the snapshot reader's
-    /// guarantees; outside them (or NaN) the legs are all zero.
-    pub fn base_legs(&self, recovery: f64, detach: f64, rho: f64) -> BaseLegs {
-        self.base_legs_by(recovery, detach, rho, Method::ClosedForm)
+    /// # Errors
+    /// [`ErrorKind::InvalidInput`] when `detach` is not a number in [0, 1].
+    pub fn base(&self, detach: f64) -> Result<BaseTranche> {
+        BaseTranche::new(self.recovery, detach)
+    }
+
+    /// Legs of a base tranche (made by [`Self::base`]) at correlation `rho`,
+    /// pool units, by the closed form. `detach = 0` gives all zeros.
+    pub fn base_legs(&self, base: &BaseTranche, rho: f64) -> BaseLegs {
+        self.base_legs_by(base, rho, Method::ClosedForm)
     }
 
     /// [`Self::base_legs`] with the expectation evaluated by `method`
     /// (closed form, or the independent quadrature over the factor).
-    pub fn base_legs_by(&self, recovery: f64, detach: f64, rho: f64, method: Method) -> BaseLegs {
-        if detach <= 0.0 {
+    pub fn base_legs_by(&self, base: &BaseTranche, rho: f64, method: Method) -> BaseLegs {
+        if base.detach <= 0.0 {
             return BaseLegs::default();
         }
-        let Ok(base) = BaseTranche::new(recovery, detach) else {
-            return BaseLegs::default();
-        };
         match method {
             // The closed form's fast path: the bivariate normal's rule for
             // this correlation is built once for every date.
@@ -125,6 +167,19 @@ impl TrancheSchedule {
             }
             Method::Quadrature => self.sum_legs(|h| base.expectation(h, rho, method)),
         }
+    }
+
+    /// Expected loss E[min(L, K)] of a base tranche at step-in and at every
+    /// period end (the dates at which the legs read it), pool units.
+    pub fn base_expected_losses(&self, base: &BaseTranche, rho: f64) -> Vec<f64> {
+        if base.detach <= 0.0 {
+            return vec![0.0; self.horizons.len()];
+        }
+        let corr = Correlation::new(rho);
+        self.horizons
+            .iter()
+            .map(|h| base.closed_form(h, &corr).loss)
+            .collect()
     }
 
     /// Sums the legs over the schedule from the base expectation at each date.

@@ -12,7 +12,10 @@
 //! ```
 //! A `spread_bp` quote s is the case c = s, u = 0.
 
+use super::bounds::Tranche;
 use super::legs::{BaseLegs, TrancheSchedule};
+use crate::error::Result;
+use crate::loss::BaseTranche;
 use crate::market::Quote;
 
 /// Legs of one tranche per unit of tranche notional.
@@ -27,28 +30,52 @@ pub struct TrancheLegs {
     pub d_protection: f64,
     /// d annuity / d rho, as for `d_protection`.
     pub d_annuity: f64,
-    /// Expected tranche loss at the protection end, fraction of the width,
-    /// clamped to [0, 1] (a thin senior tranche's difference of two base
-    /// losses can come out -1e-17).
+    /// Expected tranche loss at the protection end, fraction of the width.
+    /// Not clamped: rounding in a thin senior tranche shows as -1e-17, and a
+    /// skew that is not arbitrage-free as a negative number.
     pub expected_loss: f64,
 }
 
-/// A tranche with its quote on a precomputed schedule.
+/// A tranche with its contract (a quote: running spread, or upfront plus
+/// coupon) on a precomputed schedule.
 #[derive(Debug, Clone, Copy)]
 pub struct TrancheValuer<'a> {
-    /// The schedule (discounting, default probabilities).
+    /// The schedule (discounting, default probabilities, recovery).
     pub schedule: &'a TrancheSchedule,
-    /// Recovery of the pool.
-    pub recovery: f64,
-    /// Attachment (fraction).
-    pub attach: f64,
-    /// Detachment (fraction).
-    pub detach: f64,
-    /// The tranche's quote.
+    /// The tranche's bounds.
+    pub tranche: Tranche,
+    /// The tranche's quote (its contract terms).
     pub quote: Quote,
+    lower: BaseTranche,
+    upper: BaseTranche,
 }
 
-impl TrancheValuer<'_> {
+impl<'a> TrancheValuer<'a> {
+    /// The tranche `tranche` with contract `quote` on `schedule`.
+    ///
+    /// # Errors
+    /// Only if the schedule's recovery is not a fraction (the schedule
+    /// checks it, so in practice never).
+    pub fn new(schedule: &'a TrancheSchedule, tranche: Tranche, quote: Quote) -> Result<Self> {
+        Ok(TrancheValuer {
+            schedule,
+            tranche,
+            quote,
+            lower: schedule.base(tranche.attach())?,
+            upper: schedule.base(tranche.detach())?,
+        })
+    }
+
+    /// The base tranche [0, A].
+    pub fn lower_base(&self) -> &BaseTranche {
+        &self.lower
+    }
+
+    /// The base tranche [0, D].
+    pub fn upper_base(&self) -> &BaseTranche {
+        &self.upper
+    }
+
     /// Running spread paid alongside the upfront (the coupon, or the quoted par spread).
     pub fn running(&self) -> f64 {
         match self.quote {
@@ -65,23 +92,38 @@ impl TrancheValuer<'_> {
         }
     }
 
+    /// Legs of the upper base [0, D] at `rho` (pool units).
+    pub fn upper_legs(&self, rho: f64) -> BaseLegs {
+        self.schedule.base_legs(&self.upper, rho)
+    }
+
+    /// Legs of the lower base [0, A] at `rho` (pool units).
+    pub fn lower_legs(&self, rho: f64) -> BaseLegs {
+        self.schedule.base_legs(&self.lower, rho)
+    }
+
     /// Legs with the attachment's base at `rho_attach` and the detachment's
     /// at `rho_detach`. Derivatives are in `rho_detach` only.
     pub fn legs(&self, rho_attach: f64, rho_detach: f64) -> TrancheLegs {
-        let d = self
-            .schedule
-            .base_legs(self.recovery, self.detach, rho_detach);
-        let a = self
-            .schedule
-            .base_legs(self.recovery, self.attach, rho_attach);
+        let d = self.upper_legs(rho_detach);
+        let a = self.lower_legs(rho_attach);
         self.combine(&a, &d, false)
     }
 
     /// Legs at one flat correlation, derivatives in that correlation.
     pub fn legs_flat(&self, rho: f64) -> TrancheLegs {
-        let d = self.schedule.base_legs(self.recovery, self.detach, rho);
-        let a = self.schedule.base_legs(self.recovery, self.attach, rho);
+        let d = self.upper_legs(rho);
+        let a = self.lower_legs(rho);
         self.combine(&a, &d, true)
+    }
+
+    /// Expected tranche loss (fraction of the width) at step-in and at every
+    /// period end, with the bases at their own correlations. Not clamped.
+    pub fn expected_losses(&self, rho_attach: f64, rho_detach: f64) -> Vec<f64> {
+        let w = self.tranche.width();
+        let d = self.schedule.base_expected_losses(&self.upper, rho_detach);
+        let a = self.schedule.base_expected_losses(&self.lower, rho_attach);
+        d.iter().zip(&a).map(|(d, a)| (d - a) / w).collect()
     }
 
     /// The tranche's legs from its two base tranches' legs (pool units):
@@ -89,14 +131,14 @@ impl TrancheValuer<'_> {
     /// and the derivatives are in it; otherwise the lower base is held and
     /// the derivatives are in the upper base's correlation.
     pub fn combine(&self, lower: &BaseLegs, upper: &BaseLegs, flat: bool) -> TrancheLegs {
-        let w = self.detach - self.attach;
+        let w = self.tranche.width();
         let held = if flat { 1.0 } else { 0.0 };
         TrancheLegs {
             protection: (upper.protection - lower.protection) / w,
             annuity: (upper.annuity - lower.annuity) / w,
             d_protection: (upper.d_protection - held * lower.d_protection) / w,
             d_annuity: (upper.d_annuity - held * lower.d_annuity) / w,
-            expected_loss: ((upper.expected_loss - lower.expected_loss) / w).clamp(0.0, 1.0),
+            expected_loss: (upper.expected_loss - lower.expected_loss) / w,
         }
     }
 
