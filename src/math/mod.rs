@@ -1,4 +1,6 @@
-//! Special functions: the normal distribution and the bivariate normal CDF.
+//! Special functions (the normal distribution and the bivariate normal CDF)
+//! and interpolation of the skew.
 
 pub mod bvn;
+pub mod interp;
 pub mod normal;
