@@ -11,6 +11,9 @@ mod cli_errors;
 mod curve;
 /// The command line against the independent Python implementation's fixtures.
 mod independent;
+/// Interpolation of the skew: PCHIP and linear against scipy, isotonic
+/// regression, the concave quadratic spline's shape laws.
+mod interp;
 /// Sample outputs against the fixtures recorded before a refactoring.
 mod outputs;
 /// Real-world calibration: estimators against an independent Python

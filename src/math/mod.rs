@@ -1,11 +1,14 @@
 //! Numerical building blocks: the normal distribution, the bivariate normal
-//! CDF, and root finders with their stopping rules.
+//! CDF, root finders with their stopping rules, and interpolation.
 //!
 //! - [`normal`]: the normal CDF, density and inverse;
 //! - [`bvn`]: the bivariate normal CDF (Genz 2004);
 //! - [`root`]: the stopping rule ([`root::Tolerance`]) kept apart from the
-//!   solvers (Brent, bracketed Newton), and what a solve returns.
+//!   solvers (Brent, bracketed Newton), and what a solve returns;
+//! - [`interp`]: knot interpolation (linear, monotone cubic), isotonic
+//!   regression and a shape-preserving concave spline.
 
 pub mod bvn;
+pub mod interp;
 pub mod normal;
 pub mod root;
