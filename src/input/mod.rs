@@ -1,6 +1,7 @@
 //! Readers for every input file. No command opens a file on its own: they
 //! all come through [`read_source`], where `-` means standard input.
 
+mod cells;
 pub mod history;
 pub mod snapshot;
 
