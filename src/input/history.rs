@@ -25,6 +25,7 @@
 
 use super::cells::{self, invalid, quoted, Header, Row};
 use crate::error::{Error, ErrorKind, Problem, Result};
+use std::collections::HashMap;
 
 /// The fewest periods a history may have.
 pub const MIN_PERIODS: usize = 3;
@@ -269,6 +270,8 @@ pub fn parse_history(path: &str, text: &str) -> Result<History> {
     };
 
     let mut periods: Vec<Period> = Vec::new();
+    // Line of each label's first row: a repeat is found in constant time.
+    let mut first_line: HashMap<String, u64> = HashMap::with_capacity(records.len());
     for rec in &records[1..] {
         let mut row = Row::new(&sheet, rec, &mut problems);
         if !row.width() {
@@ -283,11 +286,10 @@ pub fn parse_history(path: &str, text: &str) -> Result<History> {
                 "expected a period label, found an empty cell".into(),
             );
             labelled = false;
-        } else if let Some(prev) = periods.iter().find(|p| p.label == label) {
+        } else if let Some(first) = first_line.get(&label) {
             let msg = format!(
-                "expected each period once, found {} again (first on line {})",
+                "expected each period once, found {} again (first on line {first})",
                 quoted(&label),
-                prev.line
             );
             row.bad(PERIOD, msg);
             labelled = false;
@@ -328,6 +330,7 @@ pub fn parse_history(path: &str, text: &str) -> Result<History> {
         // A label is kept for the check of repeats even when the numbers
         // of its row are bad (the row is not a period then: the file fails).
         if labelled {
+            first_line.insert(label.clone(), line);
             periods.push(Period {
                 label,
                 rate: parsed.as_ref().map_or(f64::NAN, |p| p.0),
@@ -430,6 +433,23 @@ mod tests {
                 "h.csv:7:3: column \"obligors\": expected at least 1 obligor, found 0",
             ]
         );
+    }
+
+    #[test]
+    fn every_repeat_names_the_first_row_of_its_label() {
+        // A label on a row with a bad number is still the first of its kind.
+        let m = messages("period,default_rate_pct\na,1\nb,x\nc,1\nb,1\na,2\nd,1\nb,3\n");
+        assert_eq!(
+            m,
+            vec![
+                "h.csv:3:2: column \"default_rate_pct\": expected a number, found \"x\"",
+                "h.csv:5:1: column \"period\": expected each period once, found \"b\" again (first on line 3)",
+                "h.csv:6:1: column \"period\": expected each period once, found \"a\" again (first on line 2)",
+                "h.csv:8:1: column \"period\": expected each period once, found \"b\" again (first on line 3)",
+            ]
+        );
+        // Labels are compared as written after trimming: "2020" and "2020.0" differ.
+        assert!(messages("period,default_rate_pct\n2020,1\n 2020.0 ,1\n2021,1\n").is_empty());
     }
 
     #[test]
