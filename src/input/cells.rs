@@ -147,6 +147,23 @@ pub(crate) fn plain_location(path: &str, line: u64) -> Location {
     }
 }
 
+/// The problem of a file with nothing in it; `rows` names its rows
+/// ("quote").
+pub(crate) fn empty_file(path: &str, rows: &str) -> Problem {
+    Problem::at(
+        plain_location(path, 1),
+        format!("expected a header row and {rows} rows, found an empty file (no {rows} rows)"),
+    )
+}
+
+/// The problem of a file with a header and no rows after it.
+pub(crate) fn header_only(header: &Header, rows: &str) -> Problem {
+    Problem::at(
+        header.plain(header.line),
+        format!("expected {rows} rows after the header, found none (no {rows} rows)"),
+    )
+}
+
 /// The cell as written, quoted and escaped for a message (long cells cut).
 pub(crate) fn quoted(s: &str) -> String {
     if s.chars().count() > QUOTE_CHARS {
@@ -411,6 +428,17 @@ impl<'h, 'r, 'p> Row<'h, 'r, 'p> {
             format!("expected {width} cells as in the header (line {line}), found {n}: {tail}"),
         ));
         false
+    }
+
+    /// A required non-empty text cell; `what` names it for an empty cell.
+    pub fn text(&mut self, id: usize, what: &str) -> Option<&'r str> {
+        let s = self.cell(id);
+        if s.is_empty() {
+            self.bad(id, format!("expected {what}, found an empty cell"));
+            None
+        } else {
+            Some(s)
+        }
     }
 
     /// A required ISO 8601 date; `what` names it for an empty cell.

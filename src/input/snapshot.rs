@@ -132,10 +132,7 @@ pub fn parse_snapshot(text: &str, path: &str) -> Result<Snapshot> {
     let records = cells::records(text, path, &mut problems);
 
     let Some(header) = records.first() else {
-        problems.push(Problem::at(
-            cells::plain_location(path, 1),
-            "expected a header row and quote rows, found an empty file (no quote rows)",
-        ));
+        problems.push(cells::empty_file(path, "quote"));
         return Err(invalid(problems));
     };
     let sheet = Header::read(path, header, &COLUMNS, &mut problems);
@@ -145,10 +142,7 @@ pub fn parse_snapshot(text: &str, path: &str) -> Result<Snapshot> {
         return Err(invalid(problems));
     }
     if records.len() == 1 {
-        problems.push(Problem::at(
-            sheet.plain(sheet.line),
-            "expected quote rows after the header, found none (no quote rows)",
-        ));
+        problems.push(cells::header_only(&sheet, "quote"));
         return Err(invalid(problems));
     }
 
