@@ -35,6 +35,8 @@
 //! [`Problem`] in [`Snapshot::warnings`]; commands decide what to do with it.
 
 use super::cells::{self, invalid, pct, quoted, Header, Record, Row as Cells};
+#[cfg(doc)]
+use crate::error::ErrorKind;
 use crate::error::{Problem, Result};
 use crate::market::{
     tiles_from_zero, IndexQuote, MarketDate, Quote, Snapshot, TrancheQuote, ZeroPillar,
