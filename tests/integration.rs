@@ -25,6 +25,8 @@ mod realworld_coverage;
 mod samples;
 /// Snapshot reader: valid files, every validation rule, malformed fixtures, fuzzing.
 mod snapshot;
+/// Trades and pools readers: valid files, round trips, every rule located.
+mod trades_pools;
 /// Tranche legs, compound and base correlation.
 mod tranche;
 

@@ -15,8 +15,17 @@
 //!   `defaults` <= `obligors`;
 //! - every row has as many cells as the header;
 //! - at least 3 periods.
+//!
+//! The file is read as every reader reads CSV: a UTF-8 byte-order mark is
+//! accepted, cells are trimmed, blank lines are skipped but counted, so a
+//! problem's line is the line of the file (`\n`, `\r\n` or `\r` endings).
+//! Problems come sorted by line, each as
+//! `path:line:col: column "name": expected X, found Y` (or `path:line:`
+//! for a problem of the whole header or file).
 
-use crate::error::{Error, ErrorKind, Location, Problem, Result};
+use super::cells::{self, invalid, quoted, Header, Row};
+use crate::error::{Error, ErrorKind, Problem, Result};
+use std::collections::HashMap;
 
 /// The fewest periods a history may have.
 pub const MIN_PERIODS: usize = 3;
@@ -185,16 +194,24 @@ pub fn read_history(path: &str) -> Result<History> {
     parse_history(path, &text)
 }
 
+/// Column names, referred to by index below.
+const COLUMNS: [&str; 4] = ["period", "default_rate_pct", "defaults", "obligors"];
+const PERIOD: usize = 0;
+const RATE: usize = 1;
+const DEFAULTS: usize = 2;
+const OBLIGORS: usize = 3;
+
+#[derive(Clone, Copy)]
 enum Layout {
-    Rates { rate: usize },
-    Counts { defaults: usize, obligors: usize },
+    Rates,
+    Counts,
 }
 
 /// Parses and checks the text of a default history; `path` names it in errors.
 ///
 /// # Errors
 /// [`ErrorKind::InvalidInput`] listing every broken rule with its file,
-/// line and column.
+/// line and column, sorted by line.
 ///
 /// ```
 /// use skewbook::input::history::{parse_history, HistoryKind};
@@ -206,195 +223,100 @@ enum Layout {
 /// ```
 pub fn parse_history(path: &str, text: &str) -> Result<History> {
     let mut problems: Vec<Problem> = Vec::new();
-    let loc = |line: u64, col: Option<usize>, header: Option<&str>| Location {
-        path: path.to_string(),
-        line,
-        column: col,
-        header: header.map(str::to_string),
-    };
-    let mut rdr = csv::ReaderBuilder::new()
-        .has_headers(false)
-        .flexible(true)
-        .from_reader(text.as_bytes());
-    let mut records = rdr.records();
-    let header = match records.next() {
-        None => {
-            return Err(Error::new(
-                ErrorKind::InvalidInput,
-                Problem::at(
-                    loc(1, None, None),
-                    "expected a header row (period and default_rate_pct, or period, defaults \
-                     and obligors), found an empty file",
-                ),
-            ))
-        }
-        Some(Err(e)) => {
-            return Err(Error::new(
-                ErrorKind::InvalidInput,
-                Problem::at(loc(1, None, None), format!("cannot read the header: {e}")),
-            ))
-        }
-        Some(Ok(h)) => h,
-    };
-    let header_line = header.position().map_or(1, |p| p.line());
-    let names: Vec<String> = header.iter().map(|s| s.trim().to_string()).collect();
-    let find = |name: &str| names.iter().position(|n| n == name);
-    for (j, n) in names.iter().enumerate() {
-        let known = ["period", "default_rate_pct", "defaults", "obligors"];
-        if !known.contains(&n.as_str()) {
-            problems.push(Problem::at(
-                loc(header_line, Some(j + 1), None),
-                format!(
-                    "expected one of the columns period, default_rate_pct, defaults, obligors, \
-                     found \"{n}\""
-                ),
-            ));
-        } else if names[..j].contains(n) {
-            problems.push(Problem::at(
-                loc(header_line, Some(j + 1), None),
-                format!("expected each column once, found \"{n}\" again"),
-            ));
-        }
-    }
-    let period_col = find("period");
-    if period_col.is_none() {
+    let records = cells::records(text, path, &mut problems);
+    let Some(header) = records.first() else {
         problems.push(Problem::at(
-            loc(header_line, None, None),
-            "expected a column \"period\" in the header, found none",
+            cells::plain_location(path, 1),
+            "expected a header row (period and default_rate_pct, or period, defaults \
+             and obligors), found an empty file",
         ));
-    }
-    let layout = match (find("default_rate_pct"), find("defaults"), find("obligors")) {
-        (Some(rate), None, None) => Some(Layout::Rates { rate }),
-        (None, Some(defaults), Some(obligors)) => Some(Layout::Counts { defaults, obligors }),
-        (Some(_), Some(_), _) | (Some(_), _, Some(_)) => {
-            problems.push(Problem::at(
-                loc(header_line, None, None),
+        return Err(invalid(problems));
+    };
+    let sheet = Header::read(path, header, &COLUMNS, &mut problems);
+    let has_period = sheet.require([PERIOD], &mut problems);
+    let whole = |message: &str| Problem::at(sheet.plain(sheet.line), message);
+    let layout = match (sheet.has(RATE), sheet.has(DEFAULTS), sheet.has(OBLIGORS)) {
+        (true, false, false) => Some(Layout::Rates),
+        (false, true, true) => Some(Layout::Counts),
+        (true, _, _) => {
+            problems.push(whole(
                 "expected either default_rate_pct or defaults and obligors, found both layouts",
             ));
             None
         }
-        (None, Some(_), None) => {
-            problems.push(Problem::at(
-                loc(header_line, None, None),
+        (false, true, false) => {
+            problems.push(whole(
                 "expected a column \"obligors\" beside \"defaults\", found none",
             ));
             None
         }
-        (None, None, Some(_)) => {
-            problems.push(Problem::at(
-                loc(header_line, None, None),
+        (false, false, true) => {
+            problems.push(whole(
                 "expected a column \"defaults\" beside \"obligors\", found none",
             ));
             None
         }
-        (None, None, None) => {
-            problems.push(Problem::at(
-                loc(header_line, None, None),
+        (false, false, false) => {
+            problems.push(whole(
                 "expected a column \"default_rate_pct\", or \"defaults\" and \"obligors\", found neither",
             ));
             None
         }
     };
-    if !problems.is_empty() {
-        return Err(Error {
-            kind: ErrorKind::InvalidInput,
-            problems,
-        });
-    }
-    let (Some(period_col), Some(layout)) = (period_col, layout) else {
-        return Err(Error::msg(
-            ErrorKind::InvalidInput,
-            "unreachable header state",
-        ));
+    // Rows cannot be read without the period and one whole layout; unknown
+    // and repeated names are reported but rows are still checked.
+    let (true, Some(layout)) = (has_period, layout) else {
+        return Err(invalid(problems));
     };
-    let mut periods = Vec::new();
-    let mut last_line = header_line;
-    for rec in records {
-        let rec = match rec {
-            Ok(r) => r,
-            Err(e) => {
-                let line = e.position().map_or(last_line + 1, |p| p.line());
-                problems.push(Problem::at(
-                    loc(line, None, None),
-                    format!("cannot read the row: {e}"),
-                ));
-                continue;
-            }
-        };
-        let line = rec.position().map_or(last_line + 1, |p| p.line());
-        last_line = line;
-        if rec.len() != names.len() {
-            problems.push(Problem::at(
-                loc(line, None, None),
-                format!(
-                    "expected {} cells as in the header, found {}",
-                    names.len(),
-                    rec.len()
-                ),
-            ));
+
+    let mut periods: Vec<Period> = Vec::new();
+    // Line of each label's first row: a repeat is found in constant time.
+    let mut first_line: HashMap<String, u64> = HashMap::with_capacity(records.len());
+    for rec in &records[1..] {
+        let mut row = Row::new(&sheet, rec, &mut problems);
+        if !row.width() {
             continue;
         }
-        let cell = |j: usize| rec.get(j).unwrap_or("").trim();
-        let at = |j: usize| loc(line, Some(j + 1), Some(&names[j]));
-        let label = cell(period_col).to_string();
-        let mut ok = true;
+        let line = row.line();
+        let label = row.cell(PERIOD).to_string();
+        let mut labelled = true;
         if label.is_empty() {
-            problems.push(Problem::at(
-                at(period_col),
-                "expected a period label, found an empty cell",
-            ));
-            ok = false;
-        } else if let Some(prev) = periods.iter().find(|p: &&Period| p.label == label) {
-            problems.push(Problem::at(
-                at(period_col),
-                format!(
-                    "expected each period once, found \"{label}\" again (first on line {})",
-                    prev.line
-                ),
-            ));
-            ok = false;
+            row.bad(
+                PERIOD,
+                "expected a period label, found an empty cell".into(),
+            );
+            labelled = false;
+        } else if let Some(first) = first_line.get(&label) {
+            let msg = format!(
+                "expected each period once, found {} again (first on line {first})",
+                quoted(&label),
+            );
+            row.bad(PERIOD, msg);
+            labelled = false;
         }
         let parsed = match layout {
-            Layout::Rates { rate } => match parse_number(cell(rate)) {
-                Err(m) => {
-                    problems.push(Problem::at(at(rate), m));
-                    None
-                }
-                Ok(x) if !(0.0..=100.0).contains(&x) => {
-                    problems.push(Problem::at(
-                        at(rate),
-                        format!(
-                            "expected a default rate in percent in [0, 100], found {}",
-                            cell(rate)
-                        ),
-                    ));
-                    None
-                }
-                Ok(x) => Some((x / 100.0, None)),
-            },
-            Layout::Counts { defaults, obligors } => {
-                let d = parse_count(cell(defaults));
-                let n = parse_count(cell(obligors));
-                if let Err(m) = &d {
-                    problems.push(Problem::at(at(defaults), m.clone()));
-                }
-                match &n {
-                    Err(m) => problems.push(Problem::at(at(obligors), m.clone())),
-                    Ok(0) => problems.push(Problem::at(
-                        at(obligors),
-                        "expected at least 1 obligor, found 0",
-                    )),
-                    Ok(_) => {}
+            Layout::Rates => row
+                .checked(
+                    RATE,
+                    "a number",
+                    "a default rate in percent in [0, 100]",
+                    |x| (0.0..=100.0).contains(&x),
+                )
+                .map(|x| (x / 100.0, None)),
+            Layout::Counts => {
+                let d = count(&mut row, DEFAULTS);
+                let n = count(&mut row, OBLIGORS);
+                if n == Some(0) {
+                    row.bad(OBLIGORS, "expected at least 1 obligor, found 0".into());
                 }
                 match (d, n) {
-                    (Ok(d), Ok(n)) if n > 0 && d > n => {
-                        problems.push(Problem::at(
-                            at(defaults),
-                            format!("expected defaults at most the obligors ({n}), found {d}"),
-                        ));
+                    (Some(d), Some(n)) if n > 0 && d > n => {
+                        let msg =
+                            format!("expected defaults at most the obligors ({n}), found {d}");
+                        row.bad(DEFAULTS, msg);
                         None
                     }
-                    (Ok(d), Ok(n)) if n > 0 => Some((
+                    (Some(d), Some(n)) if n > 0 => Some((
                         d as f64 / n as f64,
                         Some(Counts {
                             defaults: d,
@@ -405,38 +327,31 @@ pub fn parse_history(path: &str, text: &str) -> Result<History> {
                 }
             }
         };
-        if let (true, Some((rate, counts))) = (ok, parsed) {
+        // A label is kept for the check of repeats even when the numbers
+        // of its row are bad (the row is not a period then: the file fails).
+        if labelled {
+            first_line.insert(label.clone(), line);
             periods.push(Period {
                 label,
-                rate,
-                counts,
-                line,
-            });
-        } else if ok {
-            // keep the label for duplicate detection even when the numbers are bad
-            periods.push(Period {
-                label,
-                rate: f64::NAN,
-                counts: None,
+                rate: parsed.as_ref().map_or(f64::NAN, |p| p.0),
+                counts: parsed.and_then(|p| p.1),
                 line,
             });
         }
     }
     if !problems.is_empty() {
-        return Err(Error {
-            kind: ErrorKind::InvalidInput,
-            problems,
-        });
+        return Err(invalid(problems));
     }
     let kind = match layout {
-        Layout::Rates { .. } => HistoryKind::Rates,
-        Layout::Counts { .. } => HistoryKind::Counts,
+        Layout::Rates => HistoryKind::Rates,
+        Layout::Counts => HistoryKind::Counts,
     };
     if periods.len() < MIN_PERIODS {
+        let last_line = records.last().map_or(sheet.line, |r| r.line);
         return Err(Error::new(
             ErrorKind::InvalidInput,
             Problem::at(
-                loc(last_line, None, None),
+                cells::plain_location(path, last_line),
                 format!(
                     "expected at least {MIN_PERIODS} periods, found {}",
                     periods.len()
@@ -447,22 +362,24 @@ pub fn parse_history(path: &str, text: &str) -> Result<History> {
     History::checked(path.to_string(), kind, periods)
 }
 
-fn parse_number(s: &str) -> std::result::Result<f64, String> {
+/// A whole number of obligors or defaults.
+fn count(row: &mut Row, id: usize) -> Option<u64> {
+    let s = row.cell(id);
     if s.is_empty() {
-        return Err("expected a number, found an empty cell".into());
+        row.bad(id, "expected a whole number, found an empty cell".into());
+        return None;
     }
-    match s.parse::<f64>() {
-        Ok(x) if x.is_finite() => Ok(x),
-        _ => Err(format!("expected a number, found \"{s}\"")),
+    match s.parse::<u64>() {
+        Ok(n) => Some(n),
+        Err(_) => {
+            let msg = format!(
+                "expected a whole number (0, 1, 2, ...), found {}",
+                quoted(s)
+            );
+            row.bad(id, msg);
+            None
+        }
     }
-}
-
-fn parse_count(s: &str) -> std::result::Result<u64, String> {
-    if s.is_empty() {
-        return Err("expected a whole number, found an empty cell".into());
-    }
-    s.parse::<u64>()
-        .map_err(|_| format!("expected a whole number (0, 1, 2, ...), found \"{s}\""))
 }
 
 #[cfg(test)]
@@ -512,18 +429,35 @@ mod tests {
                 "h.csv:3:2: column \"defaults\": expected a whole number (0, 1, 2, ...), found \"x\"",
                 "h.csv:4:2: column \"defaults\": expected defaults at most the obligors (4), found 5",
                 "h.csv:5:1: column \"period\": expected each period once, found \"2019\" again (first on line 2)",
-                "h.csv:6: expected 3 cells as in the header, found 2",
+                "h.csv:6:3: column \"obligors\": expected 3 cells as in the header (line 1), found 2: the row ends before this column",
                 "h.csv:7:3: column \"obligors\": expected at least 1 obligor, found 0",
             ]
         );
     }
 
     #[test]
+    fn every_repeat_names_the_first_row_of_its_label() {
+        // A label on a row with a bad number is still the first of its kind.
+        let m = messages("period,default_rate_pct\na,1\nb,x\nc,1\nb,1\na,2\nd,1\nb,3\n");
+        assert_eq!(
+            m,
+            vec![
+                "h.csv:3:2: column \"default_rate_pct\": expected a number, found \"x\"",
+                "h.csv:5:1: column \"period\": expected each period once, found \"b\" again (first on line 3)",
+                "h.csv:6:1: column \"period\": expected each period once, found \"a\" again (first on line 2)",
+                "h.csv:8:1: column \"period\": expected each period once, found \"b\" again (first on line 3)",
+            ]
+        );
+        // Labels are compared as written after trimming: "2020" and "2020.0" differ.
+        assert!(messages("period,default_rate_pct\n2020,1\n 2020.0 ,1\n2021,1\n").is_empty());
+    }
+
+    #[test]
     fn rates_outside_0_100_and_non_numbers() {
         let m = messages("period,default_rate_pct\n1,-0.1\n2,100.5\n3,1,5\n4,abc\n5,\n");
         assert_eq!(m.len(), 5, "{m:?}");
-        assert!(m[0].starts_with("h.csv:2:2: column \"default_rate_pct\": expected a default rate in percent in [0, 100], found -0.1"));
-        assert!(m[1].contains("found 100.5"));
+        assert!(m[0].starts_with("h.csv:2:2: column \"default_rate_pct\": expected a default rate in percent in [0, 100], found \"-0.1\""));
+        assert!(m[1].contains("found \"100.5\""));
         assert!(m[2].starts_with("h.csv:4:"));
         assert_eq!(
             m[3],
@@ -545,10 +479,44 @@ mod tests {
             messages("period,defaults\n1,1\n"),
             vec!["h.csv:1: expected a column \"obligors\" beside \"defaults\", found none"]
         );
-        let m = messages("year,rate\n1,1\n");
-        assert_eq!(m.len(), 4, "{m:?}");
-        assert!(m[0].starts_with("h.csv:1:1: expected one of the columns"));
+        assert_eq!(
+            messages("year,rate\n1,1\n"),
+            vec![
+                "h.csv:1: column \"period\": expected a column named \"period\" in the header, found none",
+                "h.csv:1: expected a column \"default_rate_pct\", or \"defaults\" and \"obligors\", found neither",
+                "h.csv:1:1: column \"year\": expected a column name, one of period, default_rate_pct, defaults, obligors, found \"year\"",
+                "h.csv:1:2: column \"rate\": expected a column name, one of period, default_rate_pct, defaults, obligors, found \"rate\"",
+            ]
+        );
+        // An unknown column does not stop the rows from being checked.
+        assert_eq!(
+            messages("\u{feff}period,default_rate_pct,note\n1,1,a\n2,x,b\n"),
+            vec![
+                "h.csv:1:3: column \"note\": expected a column name, one of period, default_rate_pct, defaults, obligors, found \"note\"",
+                "h.csv:3:2: column \"default_rate_pct\": expected a number, found \"x\"",
+            ]
+        );
         assert!(messages("")[0].contains("found an empty file"));
+    }
+
+    /// Regression: lines were taken from the csv crate's record position,
+    /// which stands before the blank lines in front of a record and before
+    /// the `\n` of a `\r\n`, so a bad cell was reported lines too early.
+    #[test]
+    fn bad_cell_line_counts_blank_lines_and_crlf() {
+        let text =
+            "period,default_rate_pct\r\n\r\n2019,1\r\n2020,2\r\n\r\n\r\n2021,x\r\n2022,1\r\n";
+        assert_eq!(
+            messages(text),
+            vec!["h.csv:7:2: column \"default_rate_pct\": expected a number, found \"x\""]
+        );
+        let text = "\nperiod,default_rate_pct\n2019,1\n\n2020,101\r\n2021,1\n";
+        let m = messages(text);
+        assert_eq!(m.len(), 1, "{m:?}");
+        assert!(
+            m[0].starts_with("h.csv:5:2: column \"default_rate_pct\": "),
+            "{m:?}"
+        );
     }
 
     #[test]
