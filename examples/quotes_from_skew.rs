@@ -5,6 +5,7 @@
 //! cargo run --example quotes_from_skew -- hgx       > market-samples/hgx-2026-06-18.csv
 //! cargo run --example quotes_from_skew -- lhy       > market-samples/lhy-2026-06-18.csv
 //! cargo run --example quotes_from_skew -- history   > market-samples/hgx-history-2026-06.csv
+//! cargo run --example quotes_from_skew -- kcx       > market-samples/kcx-2026-06-18.csv
 //! ```
 //!
 //! Each scenario is invented: an index curve (par spreads, or upfronts with
@@ -32,8 +33,8 @@ struct Scenario {
     recovery: f64,
     index: Vec<(NaiveDate, Quote)>,
     zeros: Vec<(NaiveDate, f64)>,
-    tranche_maturity: NaiveDate,
-    layers: Vec<Layer>,
+    /// Tranche maturities, each with its layers.
+    tranches: Vec<(NaiveDate, Vec<Layer>)>,
 }
 
 fn d(y: i32, m: u32, day: u32) -> NaiveDate {
@@ -69,13 +70,15 @@ fn hgx(trade: NaiveDate, shift_bp: f64, rho_shift: f64) -> Scenario {
             (d(2031, 6, 18), 0.0268),
             (d(2036, 6, 18), 0.0305),
         ],
-        tranche_maturity: d(2031, 6, 20),
-        layers: layers(&[
-            (0.00, 0.03, Some(0.05), 0.18 + rho_shift),
-            (0.03, 0.07, None, 0.28 + rho_shift),
-            (0.07, 0.15, None, 0.41 + rho_shift),
-            (0.15, 1.00, None, f64::NAN),
-        ]),
+        tranches: vec![(
+            d(2031, 6, 20),
+            layers(&[
+                (0.00, 0.03, Some(0.05), 0.18 + rho_shift),
+                (0.03, 0.07, None, 0.28 + rho_shift),
+                (0.07, 0.15, None, 0.41 + rho_shift),
+                (0.15, 1.00, None, f64::NAN),
+            ]),
+        )],
     }
 }
 
@@ -95,14 +98,58 @@ fn lhy() -> Scenario {
             (d(2033, 6, 20), u(1.45)),
         ],
         zeros: vec![],
-        tranche_maturity: d(2031, 6, 20),
-        layers: layers(&[
-            (0.00, 0.10, Some(0.05), 0.17),
-            (0.10, 0.15, Some(0.05), 0.25),
-            (0.15, 0.25, Some(0.05), 0.36),
-            (0.25, 0.35, Some(0.05), 0.46),
-            (0.35, 1.00, Some(0.05), f64::NAN),
-        ]),
+        tranches: vec![(
+            d(2031, 6, 20),
+            layers(&[
+                (0.00, 0.10, Some(0.05), 0.17),
+                (0.10, 0.15, Some(0.05), 0.25),
+                (0.15, 0.25, Some(0.05), 0.36),
+                (0.25, 0.35, Some(0.05), 0.46),
+                (0.35, 1.00, Some(0.05), f64::NAN),
+            ]),
+        )],
+    }
+}
+
+/// Kestrel Credit (KCX): an investment-grade-like pool with tranches at
+/// 3, 5, 7 and 10 years, a skew that steepens with maturity (the 10-year
+/// one steep enough to break the no-arbitrage laws when interpolated).
+fn kcx() -> Scenario {
+    let s = |bp: f64| Quote::Spread(bp / 1e4);
+    let curve = |m: NaiveDate, rho: [f64; 5]| {
+        (
+            m,
+            layers(&[
+                (0.00, 0.03, Some(0.05), rho[0]),
+                (0.03, 0.07, Some(0.01), rho[1]),
+                (0.07, 0.10, None, rho[2]),
+                (0.10, 0.15, None, rho[3]),
+                (0.15, 0.30, None, rho[4]),
+                (0.30, 1.00, None, f64::NAN),
+            ]),
+        )
+    };
+    Scenario {
+        trade: d(2026, 6, 18),
+        recovery: 0.40,
+        index: vec![
+            (d(2029, 6, 20), s(52.0)),
+            (d(2031, 6, 20), s(71.0)),
+            (d(2033, 6, 20), s(86.0)),
+            (d(2036, 6, 20), s(99.0)),
+        ],
+        zeros: vec![
+            (d(2027, 6, 18), 0.0221),
+            (d(2029, 6, 18), 0.0240),
+            (d(2031, 6, 18), 0.0262),
+            (d(2036, 6, 18), 0.0297),
+        ],
+        tranches: vec![
+            curve(d(2029, 6, 20), [0.12, 0.20, 0.26, 0.34, 0.52]),
+            curve(d(2031, 6, 20), [0.15, 0.24, 0.30, 0.39, 0.58]),
+            curve(d(2033, 6, 20), [0.16, 0.27, 0.35, 0.46, 0.70]),
+            curve(d(2036, 6, 20), [0.10, 0.30, 0.42, 0.58, 0.90]),
+        ],
     }
 }
 
@@ -136,7 +183,6 @@ fn print_scenario(sc: &Scenario, header: bool) -> Result<(), skewbook::Error> {
             .collect(),
     };
     let pool = Pool::build(&md, &MarketOptions::default(), "scenario")?;
-    let schedule = TrancheSchedule::for_pool(&pool, sc.tranche_maturity)?;
     if header {
         println!("date,instrument,maturity,attach_pct,detach_pct,quote_kind,quote,coupon_bp,recovery_pct");
     }
@@ -163,8 +209,22 @@ fn print_scenario(sc: &Scenario, header: bool) -> Result<(), skewbook::Error> {
             round_to(r * 100.0, 4)
         );
     }
+    for (m, layers) in &sc.tranches {
+        print_layers(sc, &pool, *m, layers)?;
+    }
+    Ok(())
+}
+
+/// Prints the tranche rows of one maturity off its base curve.
+fn print_layers(
+    sc: &Scenario,
+    pool: &Pool,
+    m: NaiveDate,
+    layers: &[Layer],
+) -> Result<(), skewbook::Error> {
+    let schedule = TrancheSchedule::for_pool(pool, m)?;
     let mut rho_below = 0.0;
-    for l in &sc.layers {
+    for l in layers {
         let rho_d = if l.detach >= 1.0 {
             rho_below
         } else {
@@ -180,7 +240,6 @@ fn print_scenario(sc: &Scenario, header: bool) -> Result<(), skewbook::Error> {
         let v = TrancheValuer::new(&schedule, Tranche::new(l.attach, l.detach)?, quote)?;
         let legs = v.legs(rho_below, rho_d);
         let (a, dd) = (round_to(l.attach * 100.0, 6), round_to(l.detach * 100.0, 6));
-        let m = sc.tranche_maturity;
         match l.coupon {
             Some(c) => println!(
                 "{},tranche,{m},{a},{dd},upfront_pct,{},{},",
@@ -207,6 +266,7 @@ fn main() -> Result<(), skewbook::Error> {
     match which.as_str() {
         "hgx" => print_scenario(&hgx(d(2026, 6, 18), 0.0, 0.0), true)?,
         "lhy" => print_scenario(&lhy(), true)?,
+        "kcx" => print_scenario(&kcx(), true)?,
         "history" => {
             // 22 business days of June 2026: spreads and correlations drift.
             let mut date = d(2026, 6, 1);
@@ -225,7 +285,7 @@ fn main() -> Result<(), skewbook::Error> {
         other => {
             return Err(skewbook::Error::msg(
                 skewbook::ErrorKind::Usage,
-                format!("unknown scenario {other:?}: expected hgx, lhy or history"),
+                format!("unknown scenario {other:?}: expected hgx, lhy, kcx or history"),
             ))
         }
     }

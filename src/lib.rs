@@ -51,6 +51,7 @@
 //!   Basel II IRB Risk Weight Functions", 2005 ([`realworld::irb`]).
 #![deny(missing_docs)]
 
+pub mod book;
 pub mod curve;
 pub mod dates;
 pub mod error;
@@ -63,6 +64,7 @@ pub mod output;
 pub mod realworld;
 pub mod report;
 pub mod solve;
+pub mod surface;
 pub mod tranche;
 
 pub use error::{Error, ErrorKind, Result};

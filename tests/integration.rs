@@ -23,6 +23,8 @@ mod realworld;
 mod realworld_coverage;
 /// Every bundled sample through every command and format.
 mod samples;
+/// The correlation surface, trades off it, mapping and risk.
+mod skew;
 /// Snapshot reader: valid files, every validation rule, malformed fixtures, fuzzing.
 mod snapshot;
 /// Trades and pools readers: valid files, round trips, every rule located.

@@ -10,6 +10,8 @@ pub mod implied;
 pub mod loss;
 pub mod price;
 pub mod realworld;
+pub mod surface;
+pub mod value;
 
 use crate::curve::{MarketOptions, Pool};
 use crate::error::{Error, Result};
@@ -42,6 +44,47 @@ pub fn pools_for_all_dates(
         Some(e) => Err(e),
         None => Ok(out),
     }
+}
+
+/// The snapshot restricted to one trade date, or as it is when `only` is `None`.
+///
+/// # Errors
+/// [`crate::ErrorKind::Usage`] when the date is not in the file.
+pub fn select_date(snapshot: &Snapshot, only: Option<chrono::NaiveDate>) -> Result<Snapshot> {
+    let Some(d) = only else {
+        return Ok(snapshot.clone());
+    };
+    let dates: Vec<MarketDate> = snapshot
+        .dates
+        .iter()
+        .filter(|m| m.date == d)
+        .cloned()
+        .collect();
+    if dates.is_empty() {
+        let have: Vec<String> = snapshot.dates.iter().map(|m| m.date.to_string()).collect();
+        return Err(Error::msg(
+            crate::ErrorKind::Usage,
+            format!(
+                "--date {d}: {} has no quotes on that date (it has {})",
+                snapshot.path,
+                if have.len() > 6 {
+                    format!(
+                        "{} dates, {} to {}",
+                        have.len(),
+                        have[0],
+                        have[have.len() - 1]
+                    )
+                } else {
+                    have.join(", ")
+                }
+            ),
+        ));
+    }
+    Ok(Snapshot {
+        path: snapshot.path.clone(),
+        dates,
+        warnings: snapshot.warnings.clone(),
+    })
 }
 
 /// A quoted tranche as every tranche report shows it: which tranche and

@@ -24,6 +24,110 @@ pub enum Command {
     Loss(LossArgs),
     /// Real-world PD and asset correlation from a default history.
     Realworld(RealworldArgs),
+    /// The base-correlation surface of each date: skew on a detachment grid,
+    /// implied exceedance curve and arbitrage checks.
+    Surface(SurfaceArgs),
+    /// A book of tranche trades priced off one date's skew, with risk.
+    Value(ValueArgs),
+}
+
+/// Interpolation of base correlation across detachment.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum, Default)]
+pub enum InterpArg {
+    /// Linear between knots, flat outside.
+    #[default]
+    Linear,
+    /// Monotone piecewise-cubic Hermite (Fritsch-Carlson), flat outside.
+    Pchip,
+}
+
+impl From<InterpArg> for skewbook::math::interp::Interp {
+    fn from(i: InterpArg) -> Self {
+        match i {
+            InterpArg::Linear => skewbook::math::interp::Interp::Linear,
+            InterpArg::Pchip => skewbook::math::interp::Interp::Pchip,
+        }
+    }
+}
+
+/// How bespoke detachments are carried to the index skew.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum, Default)]
+pub enum MappingArg {
+    /// The same detachment.
+    #[default]
+    None,
+    /// Detachment over pool expected loss matched.
+    Moneyness,
+    /// The base tranche's share of pool expected loss matched.
+    Tlp,
+    /// The probability of pool loss below the detachment matched.
+    Probability,
+}
+
+impl From<MappingArg> for skewbook::book::Mapping {
+    fn from(m: MappingArg) -> Self {
+        match m {
+            MappingArg::None => skewbook::book::Mapping::None,
+            MappingArg::Moneyness => skewbook::book::Mapping::Moneyness,
+            MappingArg::Tlp => skewbook::book::Mapping::Tlp,
+            MappingArg::Probability => skewbook::book::Mapping::Probability,
+        }
+    }
+}
+
+/// `skewbook surface`.
+#[derive(Debug, Args)]
+pub struct SurfaceArgs {
+    #[command(flatten)]
+    pub market: MarketArgs,
+    /// Interpolation of base correlation across detachment.
+    #[arg(long, value_enum, default_value_t)]
+    pub interp: InterpArg,
+    /// Detachment grid step in percent; must divide 100.
+    #[arg(
+        long,
+        value_name = "PCT",
+        default_value_t = 0.5,
+        allow_negative_numbers = true
+    )]
+    pub step_pct: f64,
+    /// Only this trade date of a history (ISO 8601); default every date.
+    #[arg(long, value_name = "YYYY-MM-DD")]
+    pub date: Option<chrono::NaiveDate>,
+}
+
+/// `skewbook value`.
+#[derive(Debug, Args)]
+pub struct ValueArgs {
+    /// Trades CSV file (`-` reads standard input).
+    pub trades: String,
+    /// Snapshot whose skew prices the trades.
+    #[arg(long, value_name = "SNAPSHOT")]
+    pub skew: String,
+    /// Bespoke pools CSV file (pools named by trades besides `index`).
+    #[arg(long, value_name = "POOLS")]
+    pub pools: Option<String>,
+    /// Trade date to value (ISO 8601); default the snapshot's last date.
+    #[arg(long, value_name = "YYYY-MM-DD")]
+    pub date: Option<chrono::NaiveDate>,
+    /// Interpolation of base correlation across detachment.
+    #[arg(long, value_enum, default_value_t)]
+    pub interp: InterpArg,
+    /// Mapping of bespoke detachments to the index skew.
+    #[arg(long, value_enum, default_value_t)]
+    pub mapping: MappingArg,
+    /// Names in a pool, for jump-to-default (a count).
+    #[arg(long, value_name = "N", default_value_t = 125)]
+    pub names: usize,
+    /// Also bucketed risk: spread per pillar, correlation per knot.
+    #[arg(long)]
+    pub buckets: bool,
+    /// `--recovery` and `--rate` for the snapshot.
+    #[command(flatten)]
+    pub curve: CurveChoiceArgs,
+    /// Output format.
+    #[arg(long, value_enum, default_value_t)]
+    pub format: FormatArg,
 }
 
 /// Output format.

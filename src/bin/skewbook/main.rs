@@ -10,6 +10,8 @@ mod implied;
 mod loss;
 mod price;
 mod realworld;
+mod surface;
+mod value;
 
 use clap::Parser;
 use cli::{Cli, Command};
@@ -31,6 +33,8 @@ fn run(cli: Cli, out: &mut dyn Write) -> Result<Outcome, Failure> {
         Command::Implied(a) => implied::run(a, out),
         Command::Loss(a) => loss::run(a, out),
         Command::Realworld(a) => realworld::run(a, out),
+        Command::Surface(a) => surface::run(a, out),
+        Command::Value(a) => value::run(a, out),
     }
 }
 

@@ -1,0 +1,20 @@
+//! `skewbook surface`: the correlation surface and its arbitrage diagnostics.
+
+use crate::cli::SurfaceArgs;
+use crate::{Failure, Outcome};
+use skewbook::output::write_report;
+use std::io::Write;
+
+/// Runs the command: violations are results (exit 0), not errors.
+pub fn run(args: SurfaceArgs, out: &mut dyn Write) -> Result<Outcome, Failure> {
+    let (snapshot, opts) = crate::curve::load(&args.market)?;
+    let report = skewbook::report::surface::build(
+        &snapshot,
+        &opts,
+        args.interp.into(),
+        args.step_pct / 100.0,
+        args.date,
+    )?;
+    write_report(out, &report, args.market.format.into())?;
+    Ok(Outcome::Clean)
+}

@@ -1,0 +1,269 @@
+//! Risk of a trade: each figure is a repricing in a bumped market.
+//!
+//! # Definitions (holder's sign, currency)
+//! ```text
+//! spread_01        pv(pool's pillar par spreads + 1 bp, bootstrapped again) - pv
+//! correlation_01   pv(every surface knot + 0.01, capped at 0.9999) - pv
+//! recovery_01      pv(pool recovery + 1 pp, bootstrapped again from the same quotes) - pv
+//! jump_to_default  s N x / W + pv' - pv     (one of n names defaults now)
+//! index_01         change under the spread bump of a protection buyer's contract,
+//!                  notional N, on the pool's pillar nearest in maturity, at its
+//!                  pre-bump par spread
+//! delta            spread_01 / index_01
+//! ```
+//! Base correlations stay at their detachments under every curve bump; a
+//! bespoke trade's mapping is solved again on the bumped pool. Each bumped
+//! market is built once per run ([`RiskContext::new`]) and shared by every
+//! trade on the same pool.
+
+use super::mapping::Mapping;
+use super::market::{Market, TradeTerms};
+use super::price::{value_trade, Priced, Valuation};
+use crate::curve::PoolBump;
+use crate::error::Result;
+use crate::tranche::{bounds::MIN_WIDTH, Tranche};
+
+/// A par-spread bump of 1 bp.
+pub const SPREAD_BUMP: f64 = 1e-4;
+/// A correlation bump of 0.01 (absolute).
+pub const CORRELATION_BUMP: f64 = 0.01;
+/// A recovery bump of one percentage point.
+pub const RECOVERY_BUMP: f64 = 0.01;
+/// Names in the pool for jump-to-default when none is given.
+pub const DEFAULT_NAMES: usize = 125;
+
+/// The risk figures of one trade; `None` where the bumped valuation could
+/// not be priced (no mapping, an unfittable bumped curve).
+#[derive(Debug, Clone, Copy, PartialEq, Default)]
+pub struct Risk {
+    /// pv under the spread bump minus pv.
+    pub spread_01: Option<f64>,
+    /// pv under the correlation bump minus pv.
+    pub correlation_01: Option<f64>,
+    /// pv under the recovery bump minus pv.
+    pub recovery_01: Option<f64>,
+    /// One name's default now.
+    pub jump_to_default: Option<f64>,
+    /// The pillar contract's change under the spread bump.
+    pub index_01: Option<f64>,
+    /// spread_01 / index_01.
+    pub delta: Option<f64>,
+}
+
+/// Bucketed risk of one trade.
+#[derive(Debug, Clone, PartialEq, Default)]
+pub struct BucketedRisk {
+    /// spread_01 with one pillar of the trade's pool bumped at a time,
+    /// shortest first: (pillar maturity, figure).
+    pub spread_01: Vec<(chrono::NaiveDate, Option<f64>)>,
+    /// correlation_01 with one surface knot bumped at a time: (maturity,
+    /// detachment, figure).
+    pub correlation_01: Vec<(chrono::NaiveDate, f64, Option<f64>)>,
+}
+
+/// Markets bumped one way each, built once and shared by every trade.
+#[derive(Debug, Clone)]
+struct PoolBumps {
+    name: String,
+    spread: Option<Market>,
+    recovery: Option<Market>,
+    pillars: Vec<Option<Market>>,
+}
+
+/// The base market and its bumped copies for one run.
+#[derive(Debug, Clone)]
+pub struct RiskContext<'a> {
+    market: &'a Market,
+    mapping: Mapping,
+    names: usize,
+    correlation: Option<Market>,
+    knots: Vec<Option<Market>>,
+    pools: Vec<PoolBumps>,
+}
+
+impl<'a> RiskContext<'a> {
+    /// Builds the bumped markets for the pools in `pools` (names as trades
+    /// give them), with bucketed bumps when `buckets` is set.
+    ///
+    /// # Errors
+    /// Not expected: a bump that cannot be bootstrapped gives `None`
+    /// figures, not an error.
+    pub fn new(
+        market: &'a Market,
+        mapping: Mapping,
+        names: usize,
+        pools: &[&str],
+        buckets: bool,
+    ) -> Result<RiskContext<'a>> {
+        let mut bumps: Vec<PoolBumps> = Vec::new();
+        for &name in pools {
+            if bumps.iter().any(|b| b.name == name) || market.pool(name).is_none() {
+                continue;
+            }
+            let pillars = if buckets {
+                let n = market.pool(name).map_or(0, |p| p.pillars.len());
+                (0..n)
+                    .map(|pillar| {
+                        market
+                            .with_pool_bumped(
+                                name,
+                                PoolBump::PillarParSpread {
+                                    pillar,
+                                    by: SPREAD_BUMP,
+                                },
+                            )
+                            .ok()
+                    })
+                    .collect()
+            } else {
+                Vec::new()
+            };
+            bumps.push(PoolBumps {
+                name: name.to_string(),
+                spread: market
+                    .with_pool_bumped(name, PoolBump::ParSpread(SPREAD_BUMP))
+                    .ok(),
+                recovery: market
+                    .with_pool_bumped(name, PoolBump::Recovery(RECOVERY_BUMP))
+                    .ok(),
+                pillars,
+            });
+        }
+        let correlation = market
+            .surface
+            .bumped(CORRELATION_BUMP)
+            .ok()
+            .map(|s| market.with_surface(s));
+        let knots = if buckets {
+            market
+                .surface
+                .knots()
+                .iter()
+                .map(|&(i, j, _, _)| {
+                    market
+                        .surface
+                        .bumped_knot(i, j, CORRELATION_BUMP)
+                        .ok()
+                        .map(|s| market.with_surface(s))
+                })
+                .collect()
+        } else {
+            Vec::new()
+        };
+        Ok(RiskContext {
+            market,
+            mapping,
+            names: names.max(1),
+            correlation,
+            knots,
+            pools: bumps,
+        })
+    }
+
+    fn pv_in(&self, t: &TradeTerms, m: Option<&Market>) -> Result<Option<f64>> {
+        let Some(m) = m else { return Ok(None) };
+        Ok(value_trade(t, m, self.mapping)?.pv())
+    }
+
+    /// The risk figures of trade `t` whose base valuation is `base`.
+    ///
+    /// # Errors
+    /// As [`value_trade`].
+    pub fn risk(&self, t: &TradeTerms, base: &Valuation) -> Result<Risk> {
+        let pv = base.pv;
+        let diff = |x: Option<f64>| x.map(|x| x - pv);
+        let bumps = self.pools.iter().find(|b| b.name == t.pool);
+        let spread_market = bumps.and_then(|b| b.spread.as_ref());
+        let spread_01 = diff(self.pv_in(t, spread_market)?);
+        let correlation_01 = diff(self.pv_in(t, self.correlation.as_ref())?);
+        let recovery_01 = diff(self.pv_in(t, bumps.and_then(|b| b.recovery.as_ref()))?);
+        let jump_to_default = self.jump_to_default(t, pv)?;
+        let index_01 = spread_market.and_then(|m| self.index_01(t, m));
+        let delta = match (spread_01, index_01) {
+            (Some(s), Some(i)) if i != 0.0 => Some(s / i),
+            _ => None,
+        };
+        Ok(Risk {
+            spread_01,
+            correlation_01,
+            recovery_01,
+            jump_to_default,
+            index_01,
+            delta,
+        })
+    }
+
+    /// Bucketed risk of trade `t` (empty unless the context was built with buckets).
+    ///
+    /// # Errors
+    /// As [`value_trade`].
+    pub fn buckets(&self, t: &TradeTerms, base: &Valuation) -> Result<BucketedRisk> {
+        let pv = base.pv;
+        let mut out = BucketedRisk::default();
+        if let (Some(b), Some(pool)) = (
+            self.pools.iter().find(|b| b.name == t.pool),
+            self.market.pool(&t.pool),
+        ) {
+            for (p, m) in pool.pillars.iter().zip(&b.pillars) {
+                out.spread_01
+                    .push((p.maturity, self.pv_in(t, m.as_ref())?.map(|x| x - pv)));
+            }
+        }
+        for ((_, _, maturity, knot), m) in self.market.surface.knots().iter().zip(&self.knots) {
+            out.correlation_01.push((
+                *maturity,
+                knot.detach,
+                self.pv_in(t, m.as_ref())?.map(|x| x - pv),
+            ));
+        }
+        Ok(out)
+    }
+
+    /// One of n names defaults now at the pool's recovery.
+    fn jump_to_default(&self, t: &TradeTerms, pv: f64) -> Result<Option<f64>> {
+        let Some(pool) = self.market.pool(&t.pool) else {
+            return Ok(None);
+        };
+        let n = self.names as f64;
+        let r = pool.recovery;
+        let (l, rec) = ((1.0 - r) / n, r / n);
+        let (a, d, w) = (t.tranche.attach(), t.tranche.detach(), t.tranche.width());
+        let x = l.min(d) - l.min(a);
+        let y = rec.min(1.0 - a) - rec.min(1.0 - d);
+        let paid = t.sign * t.notional * x / w;
+        let left = w - x - y;
+        let shrink = 1.0 - 1.0 / n;
+        let a2 = (a - l).max(0.0) / shrink;
+        let d2 = (d - l).max(0.0).min(1.0 - l - rec) / shrink;
+        if left <= MIN_WIDTH || d2 - a2 < MIN_WIDTH || shrink <= 0.0 {
+            return Ok(Some(paid - pv));
+        }
+        let after = TradeTerms {
+            tranche: Tranche::new(a2.min(1.0), d2.min(1.0))?,
+            notional: t.notional * left / w,
+            ..t.clone()
+        };
+        Ok(match value_trade(&after, self.market, self.mapping)? {
+            Priced::Valued(v) => Some(paid + v.pv - pv),
+            Priced::NotPriced(_) => None,
+        })
+    }
+
+    /// Change under the spread bump of a protection buyer's contract of
+    /// notional N on the trade's pool at the pillar nearest in maturity
+    /// (ties: the later), paying that pillar's pre-bump par spread.
+    fn index_01(&self, t: &TradeTerms, bumped: &Market) -> Option<f64> {
+        let pool = self.market.pool(&t.pool)?;
+        let after = bumped.pool(&t.pool)?;
+        let gap = |m: chrono::NaiveDate| (m - t.maturity).num_days().abs();
+        let k = (0..pool.pillars.len()).min_by(|&i, &j| {
+            let (pi, pj) = (&pool.pillars[i], &pool.pillars[j]);
+            gap(pi.maturity)
+                .cmp(&gap(pj.maturity))
+                .then(pj.maturity.cmp(&pi.maturity))
+        })?;
+        let s0 = pool.pillars[k].protection / pool.pillars[k].annuity;
+        let p = after.pillars.get(k)?;
+        Some(t.notional * (p.protection - s0 * p.annuity))
+    }
+}

@@ -1,0 +1,369 @@
+//! `skewbook surface`: the correlation surface of each date, its base
+//! expected loss and exceedance curve on a detachment grid, and the
+//! arbitrage diagnostics.
+//!
+//! # JSON schema
+//! The contract's "Output of value and surface (JSON)", `surface`: an array
+//! with one object per date:
+//! ```text
+//! { "date", "interp", "step_pct", "recovery",
+//!   "maturities": [ { "maturity", "protection_end_pd",
+//!       "knots": [ {"detach_pct", "base_correlation"} ],
+//!       "grid":  [ {"k_pct", "base_correlation" (null at 0 and 100),
+//!                   "base_expected_loss", "tranchelet_loss" (null at the last point)} ],
+//!       "violations": {"outside_unit", "increasing", "maturity_order"},
+//!       "worst": {"outside_unit": null | {"k_from_pct", "k_to_pct", "tranchelet_loss"},
+//!                 "increasing": null | {"k_from_pct", "k_to_pct", "rise"},
+//!                 "maturity_order": null | {"earlier_maturity", "k_pct", "excess"}} } ] }
+//! ```
+
+use super::pools_for_all_dates;
+use crate::curve::MarketOptions;
+use crate::error::Result;
+use crate::market::Snapshot;
+use crate::math::interp::Interp;
+use crate::output::{csv_num, fixed, fixed_or, pct, sci, Report, Table};
+use crate::solve::chain::implied_date;
+use crate::surface::diagnostics::{diagnose, MaturityDiagnostics};
+use crate::surface::Surface;
+use chrono::NaiveDate;
+use serde::Serialize;
+
+/// A knot in the output.
+#[derive(Debug, Clone, Serialize, PartialEq)]
+pub struct KnotOut {
+    /// Detachment, percent.
+    pub detach_pct: f64,
+    /// Base correlation, fraction.
+    pub base_correlation: f64,
+}
+
+/// A grid point in the output.
+#[derive(Debug, Clone, Serialize, PartialEq)]
+pub struct GridOut {
+    /// K_j, percent.
+    pub k_pct: f64,
+    /// rho(K_j, M); null at 0 and 100%.
+    pub base_correlation: Option<f64>,
+    /// g(K_j), fraction of pool notional.
+    pub base_expected_loss: f64,
+    /// e_j, fraction of the tranchelet's width; null at the last point.
+    pub tranchelet_loss: Option<f64>,
+}
+
+/// Violation counts.
+#[derive(Debug, Clone, Serialize, PartialEq)]
+pub struct CountsOut {
+    /// Tranchelet losses outside [0, 1].
+    pub outside_unit: usize,
+    /// Rises of the exceedance curve.
+    pub increasing: usize,
+    /// Grid points where the earlier maturity loses more.
+    pub maturity_order: usize,
+}
+
+/// The worst tranchelet loss outside [0, 1].
+#[derive(Debug, Clone, Serialize, PartialEq)]
+pub struct OutsideOut {
+    /// K_j, percent.
+    pub k_from_pct: f64,
+    /// K_(j+1), percent.
+    pub k_to_pct: f64,
+    /// e_j.
+    pub tranchelet_loss: f64,
+}
+
+/// The worst rise of the exceedance curve.
+#[derive(Debug, Clone, Serialize, PartialEq)]
+pub struct IncreasingOut {
+    /// K_j, percent.
+    pub k_from_pct: f64,
+    /// K_(j+2), percent.
+    pub k_to_pct: f64,
+    /// e_(j+1) - e_j.
+    pub rise: f64,
+}
+
+/// The worst maturity-order violation.
+#[derive(Debug, Clone, Serialize, PartialEq)]
+pub struct OrderOut {
+    /// M_a.
+    pub earlier_maturity: String,
+    /// K_j, percent.
+    pub k_pct: f64,
+    /// g_a(K_j) - g_b(K_j).
+    pub excess: f64,
+}
+
+/// The worst of each kind.
+#[derive(Debug, Clone, Serialize, PartialEq)]
+pub struct WorstOut {
+    /// Worst tranchelet loss outside [0, 1].
+    pub outside_unit: Option<OutsideOut>,
+    /// Worst rise.
+    pub increasing: Option<IncreasingOut>,
+    /// Worst maturity-order violation.
+    pub maturity_order: Option<OrderOut>,
+}
+
+/// One maturity of the surface.
+#[derive(Debug, Clone, Serialize, PartialEq)]
+pub struct SurfaceMaturity {
+    /// Maturity, ISO 8601.
+    pub maturity: String,
+    /// Index PD at maturity + 1 day.
+    pub protection_end_pd: f64,
+    /// Knots, increasing detachment.
+    pub knots: Vec<KnotOut>,
+    /// The grid.
+    pub grid: Vec<GridOut>,
+    /// Counts per kind.
+    pub violations: CountsOut,
+    /// Worst per kind.
+    pub worst: WorstOut,
+}
+
+impl From<&MaturityDiagnostics> for SurfaceMaturity {
+    fn from(m: &MaturityDiagnostics) -> Self {
+        SurfaceMaturity {
+            maturity: m.maturity.to_string(),
+            protection_end_pd: m.protection_end_pd,
+            knots: m
+                .knots
+                .iter()
+                .map(|k| KnotOut {
+                    detach_pct: pct(k.detach),
+                    base_correlation: k.rho,
+                })
+                .collect(),
+            grid: m
+                .grid
+                .iter()
+                .map(|g| GridOut {
+                    k_pct: pct(g.k),
+                    base_correlation: g.rho,
+                    base_expected_loss: g.base_expected_loss,
+                    tranchelet_loss: g.tranchelet_loss,
+                })
+                .collect(),
+            violations: CountsOut {
+                outside_unit: m.counts.outside_unit,
+                increasing: m.counts.increasing,
+                maturity_order: m.counts.maturity_order,
+            },
+            worst: WorstOut {
+                outside_unit: m.worst_outside_unit.map(|w| OutsideOut {
+                    k_from_pct: pct(w.k_from),
+                    k_to_pct: pct(w.k_to),
+                    tranchelet_loss: w.tranchelet_loss,
+                }),
+                increasing: m.worst_increasing.map(|w| IncreasingOut {
+                    k_from_pct: pct(w.k_from),
+                    k_to_pct: pct(w.k_to),
+                    rise: w.rise,
+                }),
+                maturity_order: m.worst_maturity_order.map(|w| OrderOut {
+                    earlier_maturity: w.earlier_maturity.to_string(),
+                    k_pct: pct(w.k),
+                    excess: w.excess,
+                }),
+            },
+        }
+    }
+}
+
+/// One date of the surface report.
+#[derive(Debug, Clone, Serialize, PartialEq)]
+pub struct SurfaceDate {
+    /// Trade date.
+    pub date: String,
+    /// `linear` or `pchip`.
+    pub interp: &'static str,
+    /// Grid step h, percent.
+    pub step_pct: f64,
+    /// Index recovery, fraction.
+    pub recovery: f64,
+    /// Maturities with knots, increasing.
+    pub maturities: Vec<SurfaceMaturity>,
+}
+
+/// The whole `surface` report.
+#[derive(Debug, Clone, Serialize, PartialEq)]
+#[serde(transparent)]
+pub struct SurfaceReport {
+    /// Dates in order.
+    pub dates: Vec<SurfaceDate>,
+}
+
+/// The surface of one date off its implied base correlations.
+///
+/// # Errors
+/// Curve and pricing errors of the date.
+pub fn surface_of_date(
+    md: &crate::market::MarketDate,
+    pool: crate::curve::Pool,
+    interp: Interp,
+) -> Result<(Surface, crate::curve::Pool)> {
+    let implied = implied_date(md, pool)?;
+    let surface = Surface::from_implied(&implied, interp)?;
+    Ok((surface, implied.pool))
+}
+
+/// The surface report of every date of `snapshot` (or only `only`).
+///
+/// # Errors
+/// [`crate::ErrorKind::Usage`] for a step that does not divide 100%, or a
+/// date not in the file; curve errors of any date.
+pub fn build(
+    snapshot: &Snapshot,
+    opts: &MarketOptions,
+    interp: Interp,
+    step: f64,
+    only: Option<NaiveDate>,
+) -> Result<SurfaceReport> {
+    let n = crate::surface::diagnostics::grid_intervals(step)?;
+    let snapshot = super::select_date(snapshot, only)?;
+    let mut dates = Vec::new();
+    for (md, pool) in pools_for_all_dates(&snapshot, opts)? {
+        let (surface, pool) = surface_of_date(&md, pool, interp)?;
+        let diags = diagnose(&surface, &pool, n)?;
+        dates.push(SurfaceDate {
+            date: md.date.to_string(),
+            interp: interp.name(),
+            step_pct: step * 100.0,
+            recovery: pool.recovery,
+            maturities: diags.iter().map(SurfaceMaturity::from).collect(),
+        });
+    }
+    Ok(SurfaceReport { dates })
+}
+
+impl Report for SurfaceReport {
+    fn sections(&self) -> Vec<Table> {
+        let mut out = Vec::new();
+        for d in &self.dates {
+            if d.maturities.is_empty() {
+                let mut t = Table::new(&["maturity"]).with_title(format!(
+                    "{}  surface ({}): no base correlation on this date",
+                    d.date, d.interp
+                ));
+                t.notes
+                    .push("no maturity has a knot: nothing can be priced off the skew".to_string());
+                out.push(t);
+            }
+            for m in &d.maturities {
+                let mut t = Table::new(&["K%", "base%", "base EL%", "tranchelet%", "check"])
+                    .with_title(format!(
+                        "{}  surface maturing {} ({}, step {}%, PD {}%)",
+                        d.date,
+                        m.maturity,
+                        d.interp,
+                        d.step_pct,
+                        fixed(m.protection_end_pd * 100.0, 3)
+                    ));
+                let knots: Vec<String> = m
+                    .knots
+                    .iter()
+                    .map(|k| format!("{}%:{}", k.detach_pct, fixed(k.base_correlation * 100.0, 2)))
+                    .collect();
+                for (j, g) in m.grid.iter().enumerate() {
+                    let e = g.tranchelet_loss;
+                    let bad_unit = e.is_some_and(|e| !(-1e-12..=1.0 + 1e-12).contains(&e));
+                    let rising = match (e, m.grid.get(j + 1).and_then(|n| n.tranchelet_loss)) {
+                        (Some(a), Some(b)) => b - a > 1e-12,
+                        _ => false,
+                    };
+                    let mut check = Vec::new();
+                    if bad_unit {
+                        check.push("outside [0,1]");
+                    }
+                    if rising {
+                        check.push("rises next");
+                    }
+                    t.push(vec![
+                        fixed(g.k_pct, 2),
+                        fixed_or(g.base_correlation.map(|r| r * 100.0), 2, "-"),
+                        fixed(g.base_expected_loss * 100.0, 5),
+                        fixed_or(e.map(|e| e * 100.0), 3, "-"),
+                        check.join(","),
+                    ]);
+                }
+                t.notes
+                    .push(format!("knots (detachment:base%): {}", knots.join("  ")));
+                t.notes.push(format!(
+                    "violations: outside [0,1] {}, rising {}, maturity order {}",
+                    m.violations.outside_unit, m.violations.increasing, m.violations.maturity_order
+                ));
+                if let Some(w) = &m.worst.outside_unit {
+                    t.notes.push(format!(
+                        "worst outside [0,1]: {}-{}% tranchelet loss {}",
+                        w.k_from_pct,
+                        w.k_to_pct,
+                        sci(w.tranchelet_loss, 3)
+                    ));
+                }
+                if let Some(w) = &m.worst.increasing {
+                    t.notes.push(format!(
+                        "worst rise: {}-{}% by {}",
+                        w.k_from_pct,
+                        w.k_to_pct,
+                        sci(w.rise, 3)
+                    ));
+                }
+                if let Some(w) = &m.worst.maturity_order {
+                    t.notes.push(format!(
+                        "worst maturity order: at {}% base EL exceeds {}'s by {} of pool",
+                        w.k_pct,
+                        w.earlier_maturity,
+                        sci(w.excess, 3)
+                    ));
+                }
+                out.push(t);
+            }
+        }
+        out
+    }
+
+    fn csv(&self) -> Table {
+        let mut t = Table::new(&[
+            "date",
+            "interp",
+            "maturity",
+            "protection_end_pd",
+            "k_pct",
+            "is_knot",
+            "base_correlation",
+            "base_expected_loss",
+            "tranchelet_loss",
+            "outside_unit",
+            "increasing",
+        ]);
+        for d in &self.dates {
+            for m in &d.maturities {
+                for (j, g) in m.grid.iter().enumerate() {
+                    let e = g.tranchelet_loss;
+                    let next = m.grid.get(j + 1).and_then(|n| n.tranchelet_loss);
+                    let flag = |b: bool| if b { "1" } else { "0" }.to_string();
+                    t.push(vec![
+                        d.date.clone(),
+                        d.interp.to_string(),
+                        m.maturity.clone(),
+                        csv_num(Some(m.protection_end_pd)),
+                        csv_num(Some(g.k_pct)),
+                        flag(
+                            m.knots
+                                .iter()
+                                .any(|k| (k.detach_pct - g.k_pct).abs() < 1e-9),
+                        ),
+                        csv_num(g.base_correlation),
+                        csv_num(Some(g.base_expected_loss)),
+                        csv_num(e),
+                        flag(e.is_some_and(|e| !(-1e-12..=1.0 + 1e-12).contains(&e))),
+                        flag(matches!((e, next), (Some(a), Some(b)) if b - a > 1e-12)),
+                    ]);
+                }
+            }
+        }
+        t
+    }
+}
