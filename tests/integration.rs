@@ -25,6 +25,8 @@ mod realworld_coverage;
 mod samples;
 /// The correlation surface, trades off it, mapping and risk.
 mod skew;
+/// `surface` and `value` on the command line.
+mod skew_cli;
 /// Snapshot reader: valid files, every validation rule, malformed fixtures, fuzzing.
 mod snapshot;
 /// Trades and pools readers: valid files, round trips, every rule located.

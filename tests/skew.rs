@@ -420,3 +420,165 @@ fn sensitivities_match_central_differences() {
         slope * 0.01
     );
 }
+
+/// Jump to default against a brute-force repricing: one of n names of a
+/// pool made by hand defaults now; the original tranche is valued directly
+/// on the shifted pool loss l + (1 - 1/n) L_s and recovery r + (1 - 1/n)
+/// Rec_s of the survivors (large pool, flat correlation), each expectation
+/// over the factor by Gauss-Legendre split at its kinks, the legs summed on
+/// the contract's schedule. No tranche legs, bounds algebra or surface of
+/// the library are used, only its schedule, curves and normal functions.
+#[test]
+fn jump_to_default_matches_a_brute_force_repricing() {
+    use gauss_quad::legendre::GaussLegendre;
+    use skewbook::math::normal::{cdf, inv_cdf};
+    let (_, market) = kcx(Interp::Linear);
+    let rho = 0.27;
+    let m = d(2031, 6, 20);
+    let flat = Surface::from_knots(
+        market.index.date,
+        Interp::Linear,
+        vec![(m, vec![Knot { detach: 0.05, rho }])],
+    )
+    .unwrap();
+    let market = market.with_surface(flat);
+    let pool = &market.index;
+    let n = 125usize;
+    let opts = BookOptions {
+        names: n,
+        ..BookOptions::default()
+    };
+    let gl = GaussLegendre::new(std::num::NonZeroUsize::new(40).unwrap());
+    let (r, nn) = (pool.recovery, n as f64);
+    let (l, rec, s) = ((1.0 - r) / nn, r / nn, 1.0 - 1.0 / nn);
+    // E[min(a + b p(Z), K)] split where a + b p(Z) crosses K.
+    let expect = |pd: f64, a: f64, b: f64, caps: &[f64], f: &dyn Fn(f64) -> f64| -> f64 {
+        let c = inv_cdf(pd);
+        let p = |z: f64| cdf((c - rho.sqrt() * z) / (1.0 - rho).sqrt());
+        let mut cuts = vec![-12.0, 12.0];
+        for &k in caps {
+            let ps = (k - a) / b;
+            if ps > 0.0 && ps < 1.0 {
+                let z = (c - (1.0 - rho).sqrt() * inv_cdf(ps)) / rho.sqrt();
+                if z.abs() < 12.0 {
+                    cuts.push(z);
+                }
+            }
+        }
+        cuts.sort_by(f64::total_cmp);
+        cuts.windows(2)
+            .map(|w| {
+                gl.integrate(w[0], w[1], |z| {
+                    f(a + b * p(z)) * skewbook::math::normal::pdf(z)
+                })
+            })
+            .sum()
+    };
+    for (a, dd, sign) in [
+        (0.0, 0.03, 1.0),
+        (0.03, 0.07, -1.0),
+        (0.0035, 0.02, 1.0),
+        (0.3, 1.0, 1.0),
+    ] {
+        let t = trade(INDEX_POOL, m, a, dd, 0.01, sign);
+        let res = value_book(std::slice::from_ref(&t), &market, &opts).unwrap();
+        let pv = res[0].priced.pv().unwrap();
+        let jtd = res[0].risk.unwrap().jump_to_default.unwrap();
+        let w = dd - a;
+        let sched = skewbook::dates::Schedule::new(pool.date, m);
+        let at = |time: f64| {
+            let pd = pool.hazard.default_probability(time);
+            let loss = expect(pd, l, s * (1.0 - r), &[a, dd], &|x| x.min(dd) - x.min(a)) / w;
+            let amort = expect(pd, rec, s * r, &[1.0 - a, 1.0 - dd], &|x| {
+                x.min(1.0 - a) - x.min(1.0 - dd)
+            }) / w;
+            (loss, 1.0 - loss - amort)
+        };
+        let x = l.min(dd) - l.min(a);
+        let mut prev = at(sched.periods[0].t_start);
+        let mut value = x / w;
+        for p in &sched.periods {
+            let cur = at(p.t_end);
+            let df = pool.discount.df(p.t_pay);
+            value += df * (cur.0 - prev.0) - 0.01 * p.accrual * df * (prev.1 + cur.1) / 2.0;
+            prev = cur;
+        }
+        let brute = sign * t.notional * value - pv;
+        assert!(
+            (jtd - brute).abs() < 1e-6 * t.notional * 1e-2,
+            "[{a}, {dd}]: {jtd} vs brute force {brute}"
+        );
+    }
+}
+
+/// Bucketed figures add up to the parallel ones to first order: the gap is
+/// second order in the bump. Bound derived from the parallel second
+/// difference D2 = pv(+2h) - 2 pv(+h) + pv ~ h^2 sum_ij H_ij and each
+/// bucket's own D2_i ~ h^2 H_ii: the gap -h^2/2 sum_(i != j) H_ij is at most
+/// (|D2| + sum_i |D2_i|) / 2 when the cross terms share a sign, as they do
+/// for spreads of one curve; a 2x margin covers higher orders.
+#[test]
+fn buckets_add_up_to_the_parallel_figure_to_first_order() {
+    let (_, market) = kcx(Interp::Pchip);
+    let opts = BookOptions {
+        buckets: true,
+        ..BookOptions::default()
+    };
+    let pv_in =
+        |t: &TradeTerms, m: &Market| value_trade(t, m, Mapping::None).unwrap().pv().unwrap();
+    for t in [
+        trade(INDEX_POOL, d(2032, 6, 20), 0.04, 0.08, 0.01, 1.0),
+        trade(INDEX_POOL, d(2031, 6, 20), 0.0, 0.03, 0.05, -1.0),
+    ] {
+        let r = value_book(std::slice::from_ref(&t), &market, &opts).unwrap();
+        let (risk, b) = (r[0].risk.unwrap(), r[0].buckets.clone().unwrap());
+        let pv = r[0].priced.pv().unwrap();
+        let sum_s: f64 = b.spread_01.iter().map(|x| x.1.unwrap()).sum();
+        let sum_c: f64 = b.correlation_01.iter().map(|x| x.2.unwrap()).sum();
+        let bump = |by: f64| {
+            pv_in(
+                &t,
+                &market
+                    .with_pool_bumped(INDEX_POOL, PoolBump::ParSpread(by))
+                    .unwrap(),
+            )
+        };
+        let d2 = (bump(2e-4) - 2.0 * bump(1e-4) + pv).abs();
+        let mut d2_i = 0.0;
+        for i in 0..market.index.pillars.len() {
+            let one = |by: f64| {
+                pv_in(
+                    &t,
+                    &market
+                        .with_pool_bumped(INDEX_POOL, PoolBump::PillarParSpread { pillar: i, by })
+                        .unwrap(),
+                )
+            };
+            d2_i += (one(2e-4) - 2.0 * one(1e-4) + pv).abs();
+        }
+        let tol = (d2 + d2_i) + 1e-6;
+        assert!(
+            (sum_s - risk.spread_01.unwrap()).abs() <= tol,
+            "spread: {sum_s} vs {:?} (tol {tol})",
+            risk.spread_01
+        );
+        let corr = |s: Surface| pv_in(&t, &market.with_surface(s));
+        let c2 = (corr(market.surface.bumped(0.02).unwrap())
+            - 2.0 * corr(market.surface.bumped(0.01).unwrap())
+            + pv)
+            .abs();
+        let mut c2_i = 0.0;
+        for (i, j, _, _) in market.surface.knots() {
+            c2_i += (corr(market.surface.bumped_knot(i, j, 0.02).unwrap())
+                - 2.0 * corr(market.surface.bumped_knot(i, j, 0.01).unwrap())
+                + pv)
+                .abs();
+        }
+        let tol = (c2 + c2_i) + 1e-6;
+        assert!(
+            (sum_c - risk.correlation_01.unwrap()).abs() <= tol,
+            "corr: {sum_c} vs {:?} (tol {tol})",
+            risk.correlation_01
+        );
+    }
+}

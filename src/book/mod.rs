@@ -31,6 +31,8 @@ pub struct BookOptions {
     pub mapping: Mapping,
     /// Names in a pool, for jump-to-default.
     pub names: usize,
+    /// Risk figures besides the values.
+    pub risk: bool,
     /// Bucketed risk besides the parallel figures.
     pub buckets: bool,
 }
@@ -40,6 +42,7 @@ impl Default for BookOptions {
         BookOptions {
             mapping: Mapping::None,
             names: risk::DEFAULT_NAMES,
+            risk: true,
             buckets: false,
         }
     }
@@ -68,7 +71,11 @@ pub fn value_book(
     market: &Market,
     opts: &BookOptions,
 ) -> Result<Vec<TradeResult>> {
-    let pools: Vec<&str> = trades.iter().map(|t| t.pool.as_str()).collect();
+    let pools: Vec<&str> = if opts.risk {
+        trades.iter().map(|t| t.pool.as_str()).collect()
+    } else {
+        Vec::new()
+    };
     let ctx = RiskContext::new(market, opts.mapping, opts.names, &pools, opts.buckets)?;
     let mut schedules: HashMap<(&str, NaiveDate), TrancheSchedule> = HashMap::new();
     let mut out = Vec::with_capacity(trades.len());
@@ -87,7 +94,7 @@ pub fn value_book(
             }
         };
         let priced = price::value_trade_on(t, market, opts.mapping, schedule)?;
-        let (risk, buckets) = match priced.valuation() {
+        let (risk, buckets) = match priced.valuation().filter(|_| opts.risk) {
             Some(v) => (
                 Some(ctx.risk(t, v)?),
                 if opts.buckets {

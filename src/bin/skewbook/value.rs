@@ -63,6 +63,7 @@ pub fn run(args: ValueArgs, out: &mut dyn Write) -> Result<Outcome, Failure> {
     let options = BookOptions {
         mapping: args.mapping.into(),
         names: args.names,
+        risk: true,
         buckets: args.buckets,
     };
     let report = build(
