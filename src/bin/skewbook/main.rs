@@ -19,6 +19,7 @@ mod implied;
 mod loss;
 mod price;
 mod realworld;
+mod units;
 
 use clap::Parser;
 use cli::{Cli, Command};
