@@ -68,3 +68,12 @@ pub mod surface;
 pub mod tranche;
 
 pub use error::{Error, ErrorKind, Result};
+
+/// What skewbook's figures are and are not, in one sentence every report
+/// that gives risk or capital figures repeats (`loss`, `realworld`; the
+/// README's caution says the same at length).
+pub const CAUTION: &str = "These are model results, not advice or recommendations: \
+they depend on the inputs supplied and on the model's assumptions, and can be wrong \
+or misleading where those do not hold. Anyone using them for trading, valuation, risk \
+or capital must apply their own firm's model-risk governance and validation, licensed \
+professional practice and local regulation.";

@@ -297,7 +297,47 @@ fn upfront_near_the_recovery_limit_is_fitted_on_the_rising_branch() {
         .and_then(|r| r.split(',').next())
         .and_then(|x| x.parse().ok())
         .unwrap_or_else(|| panic!("{msg}"));
-    assert!((stated - peak).abs() < 1e-5, "{stated} vs {peak}");
+    // The message gives 6 significant digits: 5e-5 percentage points here.
+    assert!((stated - peak).abs() < 1e-4, "{stated} vs {peak}");
+}
+
+/// A spread of 1e100 bp: no hazard rate on the search grid (to about 3300)
+/// reaches it. The message gives the largest par spread found, evaluated as
+/// a model quote (the flat-hazard credit triangle: near (1 - R) h, about
+/// 2e7 bp at h = 3277), not as the quote plus a gap that rounds to 0, and
+/// every number in at most 6 significant digits (it printed 101 digits).
+#[test]
+fn unreachable_huge_spread_names_a_plausible_largest_value() {
+    let trade = d(2026, 6, 18);
+    let q = [IndexQuote {
+        maturity: d(2031, 6, 20),
+        quote: Quote::Spread(1e96),
+        line: 2,
+    }];
+    let err = bootstrap(trade, &q, &DiscountCurve::flat(0.0), 0.4, "huge.csv").unwrap_err();
+    let msg = err.to_string();
+    assert!(msg.contains("spread_bp 1e100 cannot be fitted"), "{msg}");
+    let tail = msg
+        .split("largest attainable value is ")
+        .nth(1)
+        .unwrap_or_else(|| panic!("{msg}"));
+    let (value_text, hazard_text) = tail.split_once(", at a hazard rate near ").expect("hazard");
+    let (value, hazard): (f64, f64) = (value_text.parse().unwrap(), hazard_text.parse().unwrap());
+    let triangle = 0.6 * hazard * 1e4;
+    assert!(
+        (value / triangle - 1.0).abs() < 0.05,
+        "{value} vs {triangle}: {msg}"
+    );
+    for number in [value_text, hazard_text] {
+        let digits = number
+            .split('e')
+            .next()
+            .unwrap()
+            .chars()
+            .filter(char::is_ascii_digit)
+            .count();
+        assert!(digits <= 6, "{number}: {msg}");
+    }
 }
 
 /// A pool's bumps are bootstrapped again: a par-spread bump moves every

@@ -36,7 +36,10 @@ const EXPECTED_LOSS_PP: f64 = 1e-4;
 
 /// A scenario: fixture name and the options it was run with (besides
 /// `--correlation`, which `price` alone takes). Keep in step with `RUNS` in
-/// `tests/reference/make_scenarios.py`.
+/// `tests/reference/make_scenarios.py`. The Python implementation takes its
+/// `--correlation` as a fraction, skewbook as a percentage: `correlation`
+/// is the fraction the fixture was made with, `correlation_pct` what
+/// skewbook is given (checked to be 100 times the other).
 struct Scenario {
     /// Fixture name (`tests/fixtures/independent/<name>.json`).
     name: &'static str,
@@ -44,6 +47,7 @@ struct Scenario {
     file: &'static str,
     options: &'static [&'static str],
     correlation: &'static str,
+    correlation_pct: &'static str,
 }
 
 const SCENARIOS: &[Scenario] = &[
@@ -52,42 +56,49 @@ const SCENARIOS: &[Scenario] = &[
         file: "ig_pool",
         options: &[],
         correlation: "0.3",
+        correlation_pct: "30",
     },
     Scenario {
         name: "hy_pool",
         file: "hy_pool",
         options: &["--rate", "2.5"],
         correlation: "0.25",
+        correlation_pct: "25",
     },
     Scenario {
         name: "zero_curve",
         file: "zero_curve",
         options: &[],
         correlation: "0.3",
+        correlation_pct: "30",
     },
     Scenario {
         name: "calendar_edges",
         file: "calendar_edges",
         options: &["--recovery", "35"],
         correlation: "0.35",
+        correlation_pct: "35",
     },
     Scenario {
         name: "compound_roots",
         file: "compound_roots",
         options: &[],
         correlation: "0.2",
+        correlation_pct: "20",
     },
     Scenario {
         name: "ig_pool_rho_low",
         file: "ig_pool",
         options: &[],
         correlation: "0.0001",
+        correlation_pct: "0.01",
     },
     Scenario {
         name: "ig_pool_rho_high",
         file: "ig_pool",
         options: &[],
         correlation: "0.9999",
+        correlation_pct: "99.99",
     },
 ];
 
@@ -332,7 +343,7 @@ fn check_implied(sc: &Scenario) {
 
 fn check_price(sc: &Scenario) {
     let want = fixture(sc.name);
-    let got = run("price", sc, &["--correlation", sc.correlation], &[0]);
+    let got = run("price", sc, &["--correlation", sc.correlation_pct], &[0]);
     let mut problems = Vec::new();
     for (label, w, g) in paired_tranches(&want, &got, sc.name) {
         for (field, tol) in [
@@ -408,5 +419,8 @@ fn scenario_list_matches_fixtures() {
             "{}: fixture made with `{command}`",
             sc.name
         );
+        let fraction: f64 = sc.correlation.parse().expect("fraction");
+        let pct: f64 = sc.correlation_pct.parse().expect("percent");
+        assert!((pct - 100.0 * fraction).abs() < 1e-12, "{}", sc.name);
     }
 }

@@ -7,6 +7,10 @@ mod common;
 mod bvn;
 /// The binary on malformed snapshots: exit 2, `path:line:col:` on stderr, no panic; `-` is stdin.
 mod cli_errors;
+/// The command line's rules: percent options and their warnings, negative
+/// values, `loss` domains, the IRB floor, broken pipes, message digits,
+/// stdin read once, quantile order, cautions.
+mod command_line;
 /// Index legs and the hazard bootstrap.
 mod curve;
 /// The command line against the independent Python implementation's fixtures.

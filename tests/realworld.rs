@@ -176,12 +176,12 @@ fn malformed_history_exits_2_with_line_and_column() {
 #[test]
 fn quantile_pair_from_the_command_line() {
     // reference-values.md [hp]: median 0.00657105077249435 and 99.9 %
-    // quantile 0.0903258313260653 give PD 1 %, rho 0.12.
+    // quantile 0.0903258313260653 give PD 1 %, rho 0.12 (typed in percent).
     let (code, out, err) = skewbook(&[
         "realworld",
         "market-samples/hgx-default-rates.csv",
         "--quantiles",
-        "0.5:0.00657105077249435,0.999:0.0903258313260653",
+        "50:0.657105077249435,99.9:9.03258313260653",
         "--format",
         "json",
     ]);
@@ -200,7 +200,7 @@ fn quantile_pair_from_the_command_line() {
         "realworld",
         "market-samples/hgx-default-rates.csv",
         "--quantiles",
-        "0.5:0.1,0.999:0.05",
+        "50:10,99.9:5",
     ]);
     assert_eq!(code, 2);
     assert!(err.contains("no Vasicek distribution"), "{err}");
@@ -211,8 +211,7 @@ fn loss_command_matches_published_figures() {
     // Hull (2009) worked example: PD 2 %, rho 0.1 -> 99.9 % worst-case
     // default rate 12.8 %; Basel II Annex 5: PD 2 %, LGD 45 % -> RW 114.86 %.
     let (code, out, err) = skewbook(&[
-        "loss", "--pd", "0.02", "--rho", "0.1", "--lgd", "0.45", "--levels", "0.999", "--format",
-        "json",
+        "loss", "--pd", "2", "--rho", "10", "--lgd", "45", "--levels", "99.9", "--format", "json",
     ]);
     assert_eq!(code, 0, "{err}");
     let v: Value = serde_json::from_str(&out).unwrap();
@@ -221,17 +220,16 @@ fn loss_command_matches_published_figures() {
     assert!((l["loss_quantile"].as_f64().unwrap() - 0.45 * 0.12823710729942).abs() < 1e-10);
     assert!((v["irb"]["risk_weight"].as_f64().unwrap() - 1.1486).abs() < 1e-4);
     for format in ["table", "csv"] {
-        let (code, out, _) =
-            skewbook(&["loss", "--pd", "0.01", "--rho", "0.12", "--format", format]);
+        let (code, out, _) = skewbook(&["loss", "--pd", "1", "--rho", "12", "--format", format]);
         assert_eq!(code, 0);
         assert!(no_nan(&out));
         for line in out.lines().filter(|_| format == "table") {
             assert!(line.chars().count() <= 80, "{line}");
         }
     }
-    let (code, _, err) = skewbook(&["loss", "--pd", "0.01", "--rho", "1.5"]);
+    let (code, _, err) = skewbook(&["loss", "--pd", "1", "--rho", "150"]);
     assert_eq!(code, 2);
-    assert!(err.contains("found 1.5"), "{err}");
+    assert!(err.contains("found 150"), "{err}");
 }
 
 /// `--against`: the risk-neutral one-year PD equals 1 - exp(-h1) with h1
@@ -293,30 +291,14 @@ fn against_a_snapshot_sets_the_market_beside_the_estimates() {
 
 /// Usage errors exit 2 and say what was expected: a repeated level, a
 /// Basel maturity outside its one-to-five-year floor and cap (Basel II
-/// para. 320, from memory), a level outside (0, 1).
+/// para. 320, from memory), a level outside (0, 100) percent.
 #[test]
 fn loss_rejects_levels_and_maturities_it_cannot_honour() {
     for args in [
-        vec![
-            "loss",
-            "--pd",
-            "0.02",
-            "--rho",
-            "0.1",
-            "--levels",
-            "0.99,0.99",
-        ],
-        vec![
-            "loss",
-            "--pd",
-            "0.02",
-            "--rho",
-            "0.1",
-            "--maturity",
-            "1e308",
-        ],
-        vec!["loss", "--pd", "0.02", "--rho", "0.1", "--maturity", "0.5"],
-        vec!["loss", "--pd", "0.02", "--rho", "0.1", "--levels", "1.5"],
+        vec!["loss", "--pd", "2", "--rho", "10", "--levels", "99,99"],
+        vec!["loss", "--pd", "2", "--rho", "10", "--maturity", "1e308"],
+        vec!["loss", "--pd", "2", "--rho", "10", "--maturity", "0.5"],
+        vec!["loss", "--pd", "2", "--rho", "10", "--levels", "150"],
     ] {
         let (code, out, err) = skewbook(&args);
         assert_eq!(code, 2, "{args:?}: {out}");

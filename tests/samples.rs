@@ -48,7 +48,7 @@ fn every_command_runs_on_every_sample_in_every_format() {
         for format in ["table", "csv", "json"] {
             for cmd in [
                 vec!["curve", file.as_str()],
-                vec!["price", file.as_str(), "--correlation", "0.3"],
+                vec!["price", file.as_str(), "--correlation", "30"],
                 vec!["implied", file.as_str()],
             ] {
                 let mut args = cmd.clone();
@@ -247,7 +247,7 @@ fn tables_fit_80_columns() {
         for cmd in [
             vec!["implied", file.as_str()],
             vec!["curve", file.as_str()],
-            vec!["price", file.as_str(), "--correlation", "0.25"],
+            vec!["price", file.as_str(), "--correlation", "25"],
         ] {
             let (_, out, _) = skewbook(&cmd);
             for line in out.lines() {

@@ -14,6 +14,7 @@ use crate::dates::Schedule;
 use crate::error::{Error, ErrorKind, Problem, Result};
 use crate::market::{IndexQuote, Quote};
 use crate::math::root::{brent, Tolerance};
+use crate::output::significant;
 use chrono::NaiveDate;
 
 /// Piecewise-constant pool hazard rate in curve time (Act/365F).
@@ -182,7 +183,8 @@ pub fn bootstrap(
                 annuity: fixed.annuity + rest.annuity,
             }
         };
-        let gap = |h: f64| model_quote(legs_at(h), q.quote, df_settle) - target;
+        let quote_at = |h: f64| model_quote(legs_at(h), q.quote, df_settle);
+        let gap = |h: f64| quote_at(h) - target;
         let fail = |why: String| {
             Error::new(
                 ErrorKind::Unfittable,
@@ -191,48 +193,51 @@ pub fn bootstrap(
                     q.line,
                     q.maturity,
                     q.quote.kind_name(),
-                    target
+                    significant(target, 6)
                 )),
             )
         };
-        let g0 = gap(0.0);
-        if g0 > REPRICE_TOLERANCE {
+        let q0 = quote_at(0.0);
+        if q0 - target > REPRICE_TOLERANCE {
             let why = if knots.is_empty() {
                 "a pool with no default risk already pays more than the quote"
             } else {
                 "the earlier pillars already imply more default risk"
             };
             return Err(fail(format!(
-                "even a zero hazard rate on this pillar gives {:.6} ({why})",
-                g0 + target
+                "even a zero hazard rate on this pillar gives {} ({why})",
+                significant(q0, 6)
             )));
         }
         // Bracket on a geometric grid of hazard rates. The model quote rises
         // with the hazard until, at very large hazards, most defaults fall
         // before step-in and the protection bought shrinks again; so when no
         // grid point reaches the quote, look for the maximum in between.
+        // The search compares model quotes, not gaps to the quote: against a
+        // huge quote every gap rounds to the same number.
         let (mut lo, mut hi) = (0.0, 0.05);
-        let mut ghi = gap(hi);
-        let mut best = (0.0, g0);
-        while ghi < 0.0 && hi < 1e3 {
-            if ghi > best.1 {
-                best = (hi, ghi);
+        let mut qhi = quote_at(hi);
+        let mut best = (0.0, q0);
+        while qhi - target < 0.0 && hi < 1e3 {
+            if qhi > best.1 {
+                best = (hi, qhi);
             }
             lo = hi;
             hi *= 4.0;
-            ghi = gap(hi);
+            qhi = quote_at(hi);
         }
-        if ghi < 0.0 {
+        if qhi - target < 0.0 {
             let (a, b) = if best.0 == 0.0 {
                 (0.0, 0.05)
             } else {
                 (best.0 / 4.0, best.0 * 4.0)
             };
-            let (peak, gpeak) = maximise(&gap, a, b);
-            if gpeak < 0.0 {
+            let (peak, qpeak) = maximise(&quote_at, a, b);
+            if qpeak - target < 0.0 {
                 return Err(fail(format!(
-                    "the largest attainable value is {:.6}, at a hazard rate near {peak:.4}",
-                    gpeak + target
+                    "the largest attainable value is {}, at a hazard rate near {}",
+                    significant(qpeak, 6),
+                    significant(peak, 6)
                 )));
             }
             // The rising branch: every grid point below the peak is below the quote.

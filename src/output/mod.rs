@@ -11,7 +11,26 @@
 //! - **json**: the report's serde form, pretty-printed; fractions for rates,
 //!   probabilities and correlations, `null` where a value does not exist.
 //!
-//! No printer ever writes `NaN`: values that may not exist are `Option`s.
+//! # The output guard: no NaN, no infinity, no null for a number
+//!
+//! Values that may not exist are `Option`s; every other number must be
+//! finite. [`render`] checks this on every report before a byte is written
+//! ([`check_report`]): the report's serde form is walked field by field
+//! ([`check_finite`], which sees an `f64` before serde_json would turn a NaN
+//! into `null`), and the table or CSV text about to be printed is scanned for
+//! a cell that reads `NaN` or `inf` (a number derived while printing, such as
+//! `100 x` of a huge value). A non-finite number is a bug: in a debug build
+//! (the test suite) it fails a `debug_assert!`; in a release build
+//! [`write_report`] returns [`WriteError::NotFinite`] naming the field, the
+//! command line prints it and exits 2, and nothing is printed on standard
+//! output.
+//!
+//! Output is rendered in full before it is written, so a write error (a
+//! broken pipe included) keeps its [`io::ErrorKind`].
+
+mod finite;
+
+pub use finite::{check_finite, NonFinite};
 
 use serde::Serialize;
 use std::io::{self, Write};
@@ -73,28 +92,145 @@ pub trait Report: Serialize {
     fn csv(&self) -> Table;
 }
 
-/// Prints `report` in `format`.
+/// Why a report was not printed.
+#[derive(Debug)]
+pub enum WriteError {
+    /// A number in the report is NaN or infinite (a bug: see the module
+    /// docs); nothing was written.
+    NotFinite(NonFinite),
+    /// The writer failed; a broken pipe keeps [`io::ErrorKind::BrokenPipe`].
+    Io(io::Error),
+}
+
+impl std::fmt::Display for WriteError {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        match self {
+            WriteError::NotFinite(n) => write!(f, "output guard: {n}"),
+            WriteError::Io(e) => write!(f, "writing output: {e}"),
+        }
+    }
+}
+
+impl std::error::Error for WriteError {}
+
+impl From<io::Error> for WriteError {
+    fn from(e: io::Error) -> Self {
+        WriteError::Io(e)
+    }
+}
+
+impl From<NonFinite> for WriteError {
+    fn from(e: NonFinite) -> Self {
+        WriteError::NotFinite(e)
+    }
+}
+
+/// Checks that `report` holds only finite numbers and that the text
+/// `format` would print shows none that is not: the guard of [`render`],
+/// without its debug assertion.
 ///
 /// # Errors
-/// Any error of the writer (a broken pipe included; the binary treats that
-/// one as success).
-pub fn write_report<R: Report>(w: &mut dyn Write, report: &R, format: Format) -> io::Result<()> {
+/// The first non-finite number, naming the field (JSON path) or the table,
+/// column and row where it would have been printed.
+pub fn check_report<R: Report>(report: &R, format: Format) -> Result<(), NonFinite> {
+    check_finite(report)?;
+    match format {
+        Format::Table => report
+            .sections()
+            .iter()
+            .try_for_each(|t| check_table(t, "table")),
+        Format::Csv => check_table(&report.csv(), "CSV"),
+        Format::Json => Ok(()),
+    }
+}
+
+/// The text of `report` in `format`, after the output guard.
+///
+/// # Errors
+/// [`WriteError::NotFinite`] when the guard finds a NaN or an infinity
+/// (after failing a `debug_assert!` in a debug build).
+pub fn render<R: Report>(report: &R, format: Format) -> Result<Vec<u8>, WriteError> {
+    let checked = check_report(report, format);
+    debug_assert!(
+        checked.is_ok(),
+        "output guard: {}",
+        checked
+            .as_ref()
+            .map_or_else(|e| e.to_string(), |_| String::new())
+    );
+    checked?;
+    let mut buf = Vec::new();
     match format {
         Format::Table => {
             for (i, t) in report.sections().iter().enumerate() {
                 if i > 0 {
-                    writeln!(w)?;
+                    writeln!(buf)?;
                 }
-                write_table(w, t)?;
+                write_table(&mut buf, t)?;
             }
-            Ok(())
         }
-        Format::Csv => write_csv(w, &report.csv()),
+        Format::Csv => write_csv(&mut buf, &report.csv())?,
         Format::Json => {
-            serde_json::to_writer_pretty(&mut *w, report).map_err(io::Error::other)?;
-            writeln!(w)
+            serde_json::to_writer_pretty(&mut buf, report).map_err(io::Error::other)?;
+            writeln!(buf)?;
         }
     }
+    Ok(buf)
+}
+
+/// Prints `report` in `format`: [`render`], then one write.
+///
+/// # Errors
+/// [`WriteError::NotFinite`] from the output guard (nothing is written);
+/// [`WriteError::Io`] for any error of the writer, a broken pipe included
+/// (the binary treats that one as success).
+pub fn write_report<R: Report>(
+    w: &mut dyn Write,
+    report: &R,
+    format: Format,
+) -> Result<(), WriteError> {
+    let text = render(report, format)?;
+    w.write_all(&text)?;
+    Ok(())
+}
+
+/// A cell, title or note that would print a non-finite number: a word
+/// `NaN`, `inf` or `-inf` (as Rust formats them), wherever it stands.
+fn shows_non_finite(text: &str) -> Option<&'static str> {
+    let mut words = text.split(|c: char| !(c.is_ascii_alphanumeric() || c == '-' || c == '+'));
+    words.find_map(|w| match w.trim_start_matches(['-', '+']) {
+        "NaN" => Some("NaN"),
+        "inf" => Some("inf"),
+        _ => None,
+    })
+}
+
+/// Scans the text a table would print.
+fn check_table(t: &Table, what: &str) -> Result<(), NonFinite> {
+    let title = t.title.as_deref().map_or(String::new(), |s| {
+        format!(" \"{}\"", s.lines().next().unwrap_or(""))
+    });
+    let found = |place: String, value: &str| NonFinite {
+        field: format!("{what}{title}, {place}"),
+        value: value.to_string(),
+    };
+    if let Some(v) = t.title.as_deref().and_then(shows_non_finite) {
+        return Err(found("title".into(), v));
+    }
+    for (i, row) in t.rows.iter().enumerate() {
+        for (j, cell) in row.iter().enumerate() {
+            if let Some(v) = shows_non_finite(cell) {
+                let column = t.headers.get(j).map_or("?", |h| h.as_str());
+                return Err(found(format!("column \"{column}\", row {}", i + 1), v));
+            }
+        }
+    }
+    for note in &t.notes {
+        if let Some(v) = shows_non_finite(note) {
+            return Err(found(format!("note \"{note}\""), v));
+        }
+    }
+    Ok(())
 }
 
 fn looks_numeric(s: &str) -> bool {
@@ -154,11 +290,19 @@ pub fn write_table(w: &mut dyn Write, t: &Table) -> io::Result<()> {
 /// Writes a CSV table with a header row (RFC 4180 quoting).
 pub fn write_csv(w: &mut dyn Write, t: &Table) -> io::Result<()> {
     let mut wr = csv::Writer::from_writer(w);
-    wr.write_record(&t.headers).map_err(io::Error::other)?;
+    wr.write_record(&t.headers).map_err(csv_io)?;
     for r in &t.rows {
-        wr.write_record(r).map_err(io::Error::other)?;
+        wr.write_record(r).map_err(csv_io)?;
     }
     wr.flush()
+}
+
+/// A CSV error as an I/O error, keeping the kind of one that came from the writer.
+fn csv_io(e: csv::Error) -> io::Error {
+    match e.into_kind() {
+        csv::ErrorKind::Io(e) => e,
+        other => io::Error::other(format!("{other:?}")),
+    }
 }
 
 /// `x` with `decimals` digits after the point; `-0.000` printed as `0.000`.
@@ -214,4 +358,138 @@ pub fn wrap(text: &str, width: usize, indent: usize) -> Vec<String> {
         lines.push(cur);
     }
     lines
+}
+
+/// `x` with at most `digits` significant digits (at least 1), for messages:
+/// plain notation from 1e-4 to below 1e6, exponent form outside; trailing
+/// zeros dropped.
+///
+/// ```
+/// use skewbook::output::significant;
+/// assert_eq!(significant(55.123456789, 6), "55.1235");
+/// assert_eq!(significant(1e100, 6), "1e100");
+/// assert_eq!(significant(0.000123456789, 6), "0.000123457");
+/// assert_eq!(significant(-2.5e-7, 6), "-2.5e-7");
+/// assert_eq!(significant(40.0, 6), "40");
+/// assert_eq!(significant(999999.7, 6), "1e6");
+/// ```
+pub fn significant(x: f64, digits: usize) -> String {
+    if !x.is_finite() {
+        return format!("{x}");
+    }
+    if x == 0.0 {
+        return "0".to_string();
+    }
+    let digits = digits.max(1);
+    // Round once, in exponent form, so the exponent is that of the rounded value.
+    let e_form = format!("{:.*e}", digits - 1, x);
+    let (mantissa, exponent) = e_form.split_once('e').expect("exponent form");
+    let exponent: i32 = exponent.parse().expect("exponent");
+    let trim = |s: &str| -> String {
+        if s.contains('.') {
+            s.trim_end_matches('0').trim_end_matches('.').to_string()
+        } else {
+            s.to_string()
+        }
+    };
+    if (-4..6).contains(&exponent) {
+        let decimals = (digits as i32 - 1 - exponent).max(0) as usize;
+        let rounded: f64 = e_form.parse().expect("round trip");
+        trim(&format!("{rounded:.decimals$}"))
+    } else {
+        format!("{}e{exponent}", trim(mantissa))
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn significant_keeps_at_most_the_digits_asked_for() {
+        for (x, want) in [
+            (60.0, "60"),
+            (0.4, "0.4"),
+            (-1.0, "-1"),
+            (123456.0, "123456"),
+            (1234567.0, "1.23457e6"),
+            (0.0001, "0.0001"),
+            (0.00001234, "1.234e-5"),
+            (4.9e-324, "4.94066e-324"),
+            (f64::MAX, "1.79769e308"),
+            (99.9 / 100.0, "0.999"),
+            (0.30000000000000004, "0.3"),
+            (f64::NAN, "NaN"),
+        ] {
+            assert_eq!(significant(x, 6), want, "{x:e}");
+        }
+        assert_eq!(significant(1.26, 2), "1.3");
+        assert_eq!(significant(7.0, 0), "7");
+    }
+
+    struct Poisoned(f64);
+
+    impl Serialize for Poisoned {
+        fn serialize<S: serde::Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
+            use serde::ser::SerializeStruct;
+            let mut st = s.serialize_struct("Poisoned", 1)?;
+            st.serialize_field("value", &self.0)?;
+            st.end()
+        }
+    }
+
+    impl Report for Poisoned {
+        fn sections(&self) -> Vec<Table> {
+            let mut t = Table::new(&["what", "value"]).with_title("poisoned");
+            t.push(vec!["value".into(), fixed(100.0 * self.0, 2)]);
+            vec![t]
+        }
+        fn csv(&self) -> Table {
+            self.sections().remove(0)
+        }
+    }
+
+    /// The guard names the field in every format, and a number that only
+    /// overflows while printing (100 x 1e307) is caught in the text.
+    #[test]
+    fn guard_names_the_field_in_every_format() {
+        for format in [Format::Table, Format::Csv, Format::Json] {
+            let e = check_report(&Poisoned(f64::NAN), format).unwrap_err();
+            assert_eq!((e.field.as_str(), e.value.as_str()), ("value", "NaN"));
+        }
+        assert!(check_report(&Poisoned(1e307), Format::Json).is_ok());
+        let e = check_report(&Poisoned(f64::MAX), Format::Table).unwrap_err();
+        assert_eq!(e.field, "table \"poisoned\", column \"value\", row 1");
+        assert_eq!(e.value, "inf");
+        let e = check_report(&Poisoned(-f64::MAX), Format::Csv).unwrap_err();
+        assert_eq!(e.field, "CSV \"poisoned\", column \"value\", row 1");
+        assert!(render(&Poisoned(0.25), Format::Table).is_ok());
+    }
+
+    /// In a debug build (the test suite) a non-finite number fails the
+    /// guard's debug assertion ...
+    #[cfg(debug_assertions)]
+    #[test]
+    #[should_panic(expected = "output guard: value: expected a finite number, found NaN")]
+    fn guard_is_a_debug_assertion_in_tests() {
+        let _ = write_report(&mut Vec::new(), &Poisoned(f64::NAN), Format::Json);
+    }
+
+    /// ... and in a release build an error naming the field, with nothing written.
+    #[cfg(not(debug_assertions))]
+    #[test]
+    fn guard_is_an_error_in_release() {
+        let mut out = Vec::new();
+        let e = write_report(&mut out, &Poisoned(f64::NAN), Format::Json).unwrap_err();
+        assert!(matches!(e, WriteError::NotFinite(ref n) if n.field == "value"));
+        assert!(out.is_empty());
+    }
+
+    #[test]
+    fn text_scan_finds_rust_spellings_only() {
+        assert_eq!(shows_non_finite("0.1..NaN"), Some("NaN"));
+        assert_eq!(shows_non_finite("[inf, -inf]"), Some("inf"));
+        assert_eq!(shows_non_finite("-inf"), Some("inf"));
+        assert_eq!(shows_non_finite("info: 1e-5, 0.3 infinite"), None);
+    }
 }

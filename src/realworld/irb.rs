@@ -2,6 +2,7 @@
 
 use crate::error::{Error, ErrorKind, Result};
 use crate::math::normal::{cdf, inv_cdf};
+use crate::output::significant;
 use serde::Serialize;
 
 /// The supervisory 99.9 % confidence level of the IRB formula.
@@ -25,8 +26,10 @@ pub struct IrbCapital {
     pub correlation: f64,
     /// Maturity adjustment b.
     pub maturity_slope: f64,
-    /// Capital requirement K per unit exposure.
+    /// Capital requirement K per unit exposure, floored at 0.
     pub capital: f64,
+    /// Whether the formula gave a negative K that the floor set to 0.
+    pub floored: bool,
     /// Risk weight 12.5 K, a fraction of exposure (0.9232 for 92.32 %).
     pub risk_weight: f64,
 }
@@ -38,13 +41,23 @@ pub struct IrbCapital {
 /// w = (1 - exp(-50 PD)) / (1 - exp(-50))
 /// R = 0.12 w + 0.24 (1 - w)        [SME: R -= 0.04 (1 - (S - 5) / 45), S in [5, 50]]
 /// b = (0.11852 - 0.05478 ln PD)²
-/// K = [LGD N((G(PD) + sqrt(R) G(0.999)) / sqrt(1 - R)) - PD LGD] (1 + (M - 2.5) b) / (1 - 1.5 b)
+/// K = max(0, [LGD N((G(PD) + sqrt(R) G(0.999)) / sqrt(1 - R)) - PD LGD] (1 + (M - 2.5) b) / (1 - 1.5 b))
 /// RW = 12.5 K
 /// ```
 ///
+/// # The floor at zero
+/// Basel II (June 2006 comprehensive version), a footnote to paragraph 272
+/// (from memory): if the calculation gives a negative capital charge, a zero
+/// charge applies. The footnote speaks of sovereign exposures, which use this
+/// same formula; flooring every exposure of the formula at zero is common
+/// practice. A negative K needs `1 - 1.5 b < 0`, that is a PD below about
+/// 0.0003 %, far under the corporate PD floor of 0.03 %; near that PD the
+/// maturity adjustment `1 / (1 - 1.5 b)` is singular and the figure has no
+/// meaning (the `loss` report says so).
+///
 /// # Errors
 /// [`ErrorKind::Usage`] when PD is not in (0, 1), LGD not in (0, 1], M not
-/// positive, or the turnover not positive.
+/// in [1, 5] years, or the turnover not positive.
 ///
 /// # References
 /// Basel Committee on Banking Supervision, "An Explanatory Note on the Basel
@@ -67,13 +80,19 @@ pub fn irb_corporate(
     if !(pd.is_finite() && pd > 0.0 && pd < 1.0) {
         return Err(Error::msg(
             ErrorKind::Usage,
-            format!("IRB PD: expected a fraction strictly between 0 and 1, found {pd}"),
+            format!(
+                "IRB PD: expected a fraction strictly between 0 and 1, found {}",
+                significant(pd, 6)
+            ),
         ));
     }
     if !(lgd.is_finite() && lgd > 0.0 && lgd <= 1.0) {
         return Err(Error::msg(
             ErrorKind::Usage,
-            format!("IRB LGD: expected a fraction in (0, 1], found {lgd}"),
+            format!(
+                "IRB LGD: expected a fraction in (0, 1], found {}",
+                significant(lgd, 6)
+            ),
         ));
     }
     // Basel II floors the effective maturity at one year and caps it at
@@ -81,14 +100,20 @@ pub fn irb_corporate(
     if !(1.0..=5.0).contains(&maturity) {
         return Err(Error::msg(
             ErrorKind::Usage,
-            format!("IRB maturity: expected years from 1 to 5 (the Basel II floor and cap), found {maturity}"),
+            format!(
+                "IRB maturity: expected years from 1 to 5 (the Basel II floor and cap), found {}",
+                significant(maturity, 6)
+            ),
         ));
     }
     if let Some(s) = turnover_m {
         if !(s.is_finite() && s > 0.0) {
             return Err(Error::msg(
                 ErrorKind::Usage,
-                format!("IRB turnover: expected a positive amount in millions, found {s}"),
+                format!(
+                    "IRB turnover: expected a positive amount in millions, found {}",
+                    significant(s, 6)
+                ),
             ));
         }
     }
@@ -100,7 +125,9 @@ pub fn irb_corporate(
     }
     let b = (0.11852 - 0.05478 * pd.ln()).powi(2);
     let stressed = cdf((inv_cdf(pd) + r.sqrt() * inv_cdf(IRB_CONFIDENCE)) / (1.0 - r).sqrt());
-    let k = (lgd * stressed - pd * lgd) * (1.0 + (maturity - 2.5) * b) / (1.0 - 1.5 * b);
+    let formula = (lgd * stressed - pd * lgd) * (1.0 + (maturity - 2.5) * b) / (1.0 - 1.5 * b);
+    let floored = formula < 0.0;
+    let k = formula.max(0.0);
     Ok(IrbCapital {
         pd,
         lgd,
@@ -109,6 +136,7 @@ pub fn irb_corporate(
         correlation: r,
         maturity_slope: b,
         capital: k,
+        floored,
         risk_weight: 12.5 * k,
     })
 }
@@ -154,6 +182,33 @@ mod tests {
         assert!((k.maturity_slope - 0.13748613).abs() < 5e-9);
         assert!((k.capital - 0.07385344).abs() < 5e-9);
         assert!((k.risk_weight - 0.92316801).abs() < 5e-9);
+    }
+
+    // The footnote to Basel II para. 272 (see `irb_corporate`): a negative
+    // charge becomes zero. At PD 1e-8, b = (0.11852 + 0.05478 ln 1e8)² =
+    // 1.2715 (by hand) > 2/3, so 1 - 1.5 b < 0 while the bracket LGD (N(..) -
+    // PD) is positive (the 99.9 % quantile is above the mean): at M = 2.5 the
+    // formula is negative. At M = 1 the maturity factor (1 - 1.5 b) / (1 -
+    // 1.5 b) is exactly 1, so K is the bracket itself: the Vasicek 99.9 %
+    // default-rate quantile at rho = R minus PD (an identity of the formula,
+    // evaluated through `vasicek`).
+    #[test]
+    fn negative_capital_is_floored_at_zero() {
+        let k = irb_corporate(1e-8, 1.0, 2.5, None).unwrap();
+        assert!(k.floored);
+        assert!((k.maturity_slope - 1.2715).abs() < 1e-4);
+        assert_eq!((k.capital, k.risk_weight), (0.0, 0.0));
+        let k = irb_corporate(1e-8, 1.0, 1.0, None).unwrap();
+        assert!(!k.floored);
+        let v = crate::realworld::vasicek::Vasicek::new(1e-8, k.correlation, 1.0).unwrap();
+        let bracket = v.quantile(IRB_CONFIDENCE).unwrap() - 1e-8;
+        assert!(bracket > 0.0);
+        assert!(
+            (k.capital - bracket).abs() < 1e-9 * bracket,
+            "{}",
+            k.capital
+        );
+        assert!(!irb_corporate(0.01, 0.45, 2.5, None).unwrap().floored);
     }
 
     #[test]

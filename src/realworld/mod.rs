@@ -12,8 +12,9 @@ pub mod vasicek;
 
 use crate::error::{Error, ErrorKind, Result};
 
-/// Checks confidence levels typed on the command line: each in (0, 1), none
-/// repeated (a repeated level would repeat a column).
+/// Checks confidence levels (fractions; the command line checks its
+/// percentages first): each in (0, 1), none repeated (a repeated level
+/// would repeat a column).
 ///
 /// # Errors
 /// [`ErrorKind::Usage`] naming the offending level.
@@ -22,13 +23,19 @@ pub fn check_levels(levels: &[f64]) -> Result<()> {
         if !(q > 0.0 && q < 1.0) {
             return Err(Error::msg(
                 ErrorKind::Usage,
-                format!("--levels: expected fractions in (0, 1), found {q}"),
+                format!(
+                    "confidence level: expected a fraction in (0, 1), found {}",
+                    crate::output::significant(q, 6)
+                ),
             ));
         }
         if levels[..i].contains(&q) {
             return Err(Error::msg(
                 ErrorKind::Usage,
-                format!("--levels: expected each level once, found {q} twice"),
+                format!(
+                    "confidence levels: expected each level once, found {} twice",
+                    crate::output::significant(q, 6)
+                ),
             ));
         }
     }

@@ -8,6 +8,7 @@
 use crate::error::{Error, ErrorKind, Result};
 use crate::math::bvn::bvn_cdf;
 use crate::math::normal::{cdf, inv_cdf};
+use crate::output::significant;
 use serde::Serialize;
 
 /// A checked Vasicek distribution: `pd` and `rho` in (0, 1), `lgd` in (0, 1].
@@ -27,7 +28,10 @@ fn check_open_unit(name: &str, x: f64) -> Result<()> {
     } else {
         Err(Error::msg(
             ErrorKind::Usage,
-            format!("{name}: expected a fraction strictly between 0 and 1, found {x}"),
+            format!(
+                "{name}: expected a fraction strictly between 0 and 1, found {}",
+                significant(x, 6)
+            ),
         ))
     }
 }
@@ -51,7 +55,10 @@ impl Vasicek {
         if !(lgd.is_finite() && lgd > 0.0 && lgd <= 1.0) {
             return Err(Error::msg(
                 ErrorKind::Usage,
-                format!("LGD: expected a fraction in (0, 1], found {lgd}"),
+                format!(
+                    "LGD: expected a fraction in (0, 1], found {}",
+                    significant(lgd, 6)
+                ),
             ));
         }
         Ok(Vasicek { pd, rho, lgd })
@@ -99,6 +106,11 @@ impl Vasicek {
     /// f(y) = (1 / LGD) sqrt((1 - rho) / rho)
     ///        · exp(G(x)² / 2 - (sqrt(1 - rho) G(x) - c)² / (2 rho)),   x = y / LGD
     /// ```
+    /// evaluated as the exponential of its logarithm, so that a tiny rho
+    /// gives 0 or a large number and never 0 · inf = NaN. The density is
+    /// never NaN; it is `+inf` only where the true value exceeds the largest
+    /// double (y within about 1e-300 of 0, or rho within about 1e-300 of 0,
+    /// where the distribution is nearly a point mass).
     ///
     /// # References
     /// Vasicek, "Loan portfolio value", Risk 15(12), 2002.
@@ -112,13 +124,21 @@ impl Vasicek {
     /// ```
     pub fn density(&self, y: f64) -> f64 {
         let x = y / self.lgd;
-        if x <= 0.0 || x >= 1.0 {
+        if !(x > 0.0 && x < 1.0) {
             return 0.0;
         }
         let g = inv_cdf(x);
+        if !g.is_finite() {
+            return 0.0;
+        }
         let e = (1.0 - self.rho).sqrt() * g - self.threshold();
-        ((1.0 - self.rho) / self.rho).sqrt() * (0.5 * g * g - e * e / (2.0 * self.rho)).exp()
-            / self.lgd
+        let ln_f = 0.5 * ((-self.rho).ln_1p() - self.rho.ln()) + 0.5 * g * g
+            - e * e / (2.0 * self.rho)
+            - self.lgd.ln();
+        if ln_f.is_nan() {
+            return 0.0;
+        }
+        ln_f.exp()
     }
 
     /// Loss quantile at level q in (0, 1).
@@ -246,15 +266,22 @@ pub fn quantile_pair(first: (f64, f64), second: (f64, f64)) -> Result<(f64, f64)
     if q1 == q2 {
         return Err(Error::msg(
             ErrorKind::Usage,
-            format!("quantile pair: expected two different levels, found {q1} twice"),
+            format!(
+                "quantile pair: expected two different levels, found {} twice",
+                significant(q1, 6)
+            ),
         ));
     }
     if x2 <= x1 {
         return Err(Error::msg(
             ErrorKind::Usage,
             format!(
-                "quantile pair: expected the value at level {q2} ({x2}) above the value at \
-                 level {q1} ({x1}); no Vasicek distribution has these quantiles"
+                "quantile pair: expected the value at level {} ({}) above the value at \
+                 level {} ({}); no Vasicek distribution has these quantiles",
+                significant(q2, 6),
+                significant(x2, 6),
+                significant(q1, 6),
+                significant(x1, 6)
             ),
         ));
     }
@@ -400,6 +427,32 @@ mod tests {
         let (pd2, rho2) =
             quantile_pair((0.999, 0.0903258313260653), (0.5, 0.00657105077249435)).unwrap();
         assert_eq!((pd, rho), (pd2, rho2));
+    }
+
+    // The density's logarithm form against the plain formula where both are
+    // representable, and never NaN at the edges (rho = 4.9e-324 gave
+    // 0 · inf = NaN in the plain form).
+    #[test]
+    fn density_is_finite_or_infinite_never_nan() {
+        let v = Vasicek::new(0.02, 0.15, 0.6).unwrap();
+        for y in [1e-6, 0.001, 0.01, 0.1, 0.5] {
+            let x = y / v.lgd;
+            let g = inv_cdf(x);
+            let e = (1.0 - v.rho).sqrt() * g - v.threshold();
+            let plain = ((1.0 - v.rho) / v.rho).sqrt()
+                * (0.5 * g * g - e * e / (2.0 * v.rho)).exp()
+                / v.lgd;
+            assert!(close(v.density(y), plain, 1e-12), "{y}");
+        }
+        for rho in [f64::from_bits(1), 1e-300, 1e-6, 0.5, 1.0 - 1e-16] {
+            for pd in [1e-300, 1e-8, 0.3, 1.0 - 1e-16] {
+                let v = Vasicek::new(pd, rho, 1.0).unwrap();
+                for y in [f64::from_bits(1), 1e-300, 1e-8, pd, 0.5, 1.0 - 1e-16] {
+                    let f = v.density(y);
+                    assert!(!f.is_nan() && f >= 0.0, "pd {pd} rho {rho} y {y}: {f}");
+                }
+            }
+        }
     }
 
     #[test]

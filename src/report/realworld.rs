@@ -27,7 +27,8 @@
 //!   `base_correlation_ratio` and `compound_correlation_ratio`, one entry per
 //!   tranche in the order of `tranches`, each risk-neutral / real-world rho,
 //!   null where the correlation or rho is missing or rho is 0), and
-//!   `reading`, a one-line interpretation.
+//!   `reading`, a one-line interpretation;
+//! - `caution`: [`crate::CAUTION`].
 
 use crate::error::Result;
 use crate::input::history::{History, HistoryKind};
@@ -80,6 +81,8 @@ pub struct RealworldReport {
     pub notes: Vec<String>,
     /// The risk-neutral side, with `--against`.
     pub risk_neutral: Option<RiskNeutral>,
+    /// What these figures are and are not: [`crate::CAUTION`].
+    pub caution: &'static str,
 }
 
 /// A risk-neutral default probability to one index pillar.
@@ -310,7 +313,10 @@ pub fn build_realworld(
     if !(lgd.is_finite() && lgd > 0.0 && lgd <= 1.0) {
         return Err(crate::Error::msg(
             crate::ErrorKind::Usage,
-            format!("LGD: expected a fraction in (0, 1], found {lgd}"),
+            format!(
+                "LGD: expected a fraction in (0, 1], found {}",
+                crate::output::significant(lgd, 6)
+            ),
         ));
     }
     crate::realworld::check_levels(levels)?;
@@ -342,6 +348,7 @@ pub fn build_realworld(
         methods,
         notes,
         risk_neutral: None,
+        caution: crate::CAUTION,
     })
 }
 
@@ -458,6 +465,11 @@ impl Report for RealworldReport {
         let mut out = vec![est, se, loss];
         if let Some(rn) = &self.risk_neutral {
             out.extend(rn.sections());
+        }
+        if let Some(last) = out.last_mut() {
+            last.notes.push(String::new());
+            last.notes
+                .extend(wrap(&format!("Caution: {}", self.caution), 79, 0));
         }
         out
     }

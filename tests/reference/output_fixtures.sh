@@ -21,7 +21,7 @@ run() { # name, args...
 for s in hgx-2026-06-18 lhy-2026-06-18 hgx-history-2026-06; do
   run "curve-$s" curve "market-samples/$s.csv"
   run "implied-$s" implied "market-samples/$s.csv"
-  run "price-$s" price "market-samples/$s.csv" --correlation "${PRICE_CORRELATION:-0.3}"
+  run "price-$s" price "market-samples/$s.csv" --correlation "${PRICE_CORRELATION:-30}"
 done
 for h in hgx-default-rates lhy-default-counts; do
   run "realworld-$h" realworld "market-samples/$h.csv"

@@ -1,5 +1,11 @@
 //! What the user typed: clap derive structs, nothing validated yet.
+//!
+//! Units follow the files: percents for recovery, rates, correlations,
+//! PD, LGD, confidence levels and default rates (`units` checks them and
+//! turns them into fractions). Every numeric option accepts a negative
+//! number as its value, so `--recovery -1` reaches the range check.
 
+use crate::units;
 use clap::{Args, Parser, Subcommand, ValueEnum};
 
 /// Implied tranche correlation from credit index and tranche quotes.
@@ -155,22 +161,32 @@ impl From<FormatArg> for skewbook::output::Format {
 /// The curve choices for a snapshot: recovery and flat rate, in percent.
 #[derive(Debug, Args)]
 pub struct CurveChoiceArgs {
-    /// Recovery in percent; overrides the snapshot's `recovery_pct` (default 40).
-    #[arg(long, value_name = "PCT")]
+    /// Recovery in percent, in [0, 100) (40 = 40%); overrides the snapshot's
+    /// `recovery_pct` (default 40). A value in (0, 1) draws a warning.
+    #[arg(long, value_name = "PCT", allow_negative_numbers = true)]
     pub recovery: Option<f64>,
-    /// Flat continuously compounded rate in percent, used when a date has no
-    /// `zero` rows (default 0).
+    /// Flat continuously compounded rate in percent, in (-100, 100) (2.5 =
+    /// 2.5%), used when a date has no `zero` rows (default 0). A nonzero value
+    /// under 0.1 in size draws a warning.
     #[arg(long, value_name = "PCT", allow_negative_numbers = true)]
     pub rate: Option<f64>,
 }
 
 impl CurveChoiceArgs {
-    /// The choices in the library's units (fractions), not yet validated.
-    pub fn options(&self) -> skewbook::curve::MarketOptions {
-        skewbook::curve::MarketOptions {
-            recovery: self.recovery.map(|r| r / 100.0),
-            flat_rate: self.rate.unwrap_or(0.0) / 100.0,
-        }
+    /// The choices in the library's units (fractions), checked in percent;
+    /// prints a warning for a value that looks like a fraction.
+    ///
+    /// # Errors
+    /// A usage error naming the option, its domain in percent and the value.
+    pub fn options(&self) -> Result<skewbook::curve::MarketOptions, skewbook::Error> {
+        let recovery = self.recovery.map(|r| units::RECOVERY.read(r)).transpose()?;
+        let flat_rate = self.rate.map(|r| units::RATE.read(r)).transpose()?;
+        let opts = skewbook::curve::MarketOptions {
+            recovery,
+            flat_rate: flat_rate.unwrap_or(0.0),
+        };
+        opts.validate()?;
+        Ok(opts)
     }
 
     /// Whether either choice was typed.
@@ -203,8 +219,9 @@ pub struct CurveArgs {
 pub struct PriceArgs {
     #[command(flatten)]
     pub market: MarketArgs,
-    /// Flat correlation, a fraction in (0, 1).
-    #[arg(long, value_name = "RHO")]
+    /// Flat correlation in percent, in (0, 100) (30 means 30%, the fraction 0.3). A value below 1
+    /// draws a warning.
+    #[arg(long, value_name = "PCT", allow_negative_numbers = true)]
     pub correlation: f64,
 }
 
@@ -218,24 +235,45 @@ pub struct ImpliedArgs {
 /// `skewbook loss`.
 #[derive(Debug, Args)]
 pub struct LossArgs {
-    /// One-year default probability, a fraction in (0, 1).
-    #[arg(long, value_name = "P")]
+    /// One-year default probability in percent, in [0.000001, 100) (2 = 2%).
+    /// A value below 0.03 (the Basel II corporate PD floor) draws a warning.
+    #[arg(long, value_name = "PCT", allow_negative_numbers = true)]
     pub pd: f64,
-    /// Asset correlation, a fraction in (0, 1).
-    #[arg(long, value_name = "R")]
+    /// Asset correlation in percent, in [0.0001, 100) (12 means 12%, the fraction
+    /// 0.12). A value
+    /// below 1 draws a warning.
+    #[arg(long, value_name = "PCT", allow_negative_numbers = true)]
     pub rho: f64,
-    /// Loss given default, a fraction in (0, 1].
-    #[arg(long, value_name = "L", default_value_t = 1.0)]
+    /// Loss given default in percent, in (0, 100] (45 = 45%). A value of 1 or
+    /// less draws a warning.
+    #[arg(
+        long,
+        value_name = "PCT",
+        default_value_t = 100.0,
+        allow_negative_numbers = true
+    )]
     pub lgd: f64,
-    /// Confidence levels, comma-separated fractions.
-    #[arg(long, value_delimiter = ',', default_values_t = [0.99, 0.999])]
+    /// Confidence levels in percent, comma-separated, each in (0, 100)
+    /// (99.9 = 99.9%). A level below 1 draws a warning.
+    #[arg(
+        long,
+        value_name = "PCT,PCT",
+        value_delimiter = ',',
+        default_values_t = [99.0, 99.9],
+        allow_hyphen_values = true
+    )]
     pub levels: Vec<f64>,
-    /// Effective maturity in years for the IRB capital figure.
-    #[arg(long, value_name = "YEARS", default_value_t = 2.5)]
+    /// Effective maturity in years, from 1 to 5, for the IRB capital figure.
+    #[arg(
+        long,
+        value_name = "YEARS",
+        default_value_t = 2.5,
+        allow_negative_numbers = true
+    )]
     pub maturity: f64,
-    /// Annual turnover in millions for the IRB SME correlation adjustment
-    /// (clipped to 5..50); none by default.
-    #[arg(long, value_name = "MILLIONS")]
+    /// Annual turnover in millions (currency units) for the IRB SME
+    /// correlation adjustment (clipped to 5..50); none by default.
+    #[arg(long, value_name = "MILLIONS", allow_negative_numbers = true)]
     pub turnover: Option<f64>,
     /// Output format.
     #[arg(long, value_enum, default_value_t)]
@@ -263,18 +301,38 @@ pub struct RealworldArgs {
     /// `--recovery` and `--rate` for the snapshot of `--against`.
     #[command(flatten)]
     pub curve: CurveChoiceArgs,
-    /// Confidence levels for loss quantiles, comma-separated fractions.
-    #[arg(long, value_delimiter = ',', default_values_t = [0.99, 0.999])]
+    /// Confidence levels for the loss quantiles in percent, comma-separated,
+    /// each in (0, 100) (99.9 = 99.9%). A level below 1 draws a warning.
+    #[arg(
+        long,
+        value_name = "PCT,PCT",
+        value_delimiter = ',',
+        default_values_t = [99.0, 99.9],
+        allow_hyphen_values = true
+    )]
     pub levels: Vec<f64>,
-    /// Loss given default for the loss quantiles, a fraction (1: default rate).
-    #[arg(long, value_name = "L", default_value_t = 1.0)]
+    /// Loss given default in percent for the loss quantiles, in (0, 100]
+    /// (100: the default rate itself). A value of 1 or less draws a warning.
+    #[arg(
+        long,
+        value_name = "PCT",
+        default_value_t = 100.0,
+        allow_negative_numbers = true
+    )]
     pub lgd: f64,
     /// Divisor of the sample variance in probit_moments and moment_matching.
     #[arg(long, value_enum, default_value_t)]
     pub variance_divisor: DivisorArg,
-    /// Two quantiles of the one-period default rate, LEVEL:RATE,LEVEL:RATE in
-    /// fractions (e.g. 0.5:0.0066,0.999:0.09), for the quantile_pair estimator.
-    #[arg(long, value_name = "LEVEL:RATE,LEVEL:RATE", value_delimiter = ',')]
+    /// Two quantiles of the one-period default rate, LEVEL:RATE,LEVEL:RATE,
+    /// levels and rates in percent (e.g. 50:0.66,99.9:9), for the
+    /// quantile_pair estimator; the pairs may come in either order. A level
+    /// below 1 draws a warning.
+    #[arg(
+        long,
+        value_name = "LEVEL:RATE,LEVEL:RATE",
+        value_delimiter = ',',
+        allow_hyphen_values = true
+    )]
     pub quantiles: Vec<String>,
     /// Output format.
     #[arg(long, value_enum, default_value_t)]

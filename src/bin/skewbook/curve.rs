@@ -11,8 +11,7 @@ use std::io::Write;
 /// Reads the snapshot and the market options shared by every snapshot command,
 /// printing the snapshot's warnings to standard error.
 pub fn load(m: &MarketArgs) -> Result<(Snapshot, MarketOptions), Failure> {
-    let opts = m.curve.options();
-    opts.validate()?;
+    let opts = m.curve.options()?;
     let snapshot = read_snapshot(&m.file)?;
     for w in &snapshot.warnings {
         eprintln!("warning: {w}");

@@ -1,8 +1,17 @@
 //! skewbook command line: parses arguments, calls the library, prints.
 //!
 //! Exit status: 0 all good; 1 it ran but some quotes have no solution (their
-//! rows are printed and flagged); 2 bad input or usage. A broken pipe
-//! (`skewbook implied x.csv | head`) is success.
+//! rows are printed and flagged); 2 bad input or usage, or a report that
+//! failed the output guard (a number that is not finite: a bug, named on
+//! standard error, nothing printed).
+//!
+//! # A broken pipe is success
+//! When the reader of standard output goes away (`skewbook implied x.csv |
+//! head -1`), the program stops writing and exits 0 without a message, in
+//! every format. Rust ignores SIGPIPE, so the write fails with
+//! `ErrorKind::BrokenPipe` instead of the process being killed (the shell's
+//! 141); exiting 0 keeps `set -o pipefail` scripts from failing on a
+//! `head`, as the output the reader wanted was delivered.
 
 mod cli;
 mod curve;
@@ -11,6 +20,7 @@ mod loss;
 mod price;
 mod realworld;
 mod surface;
+mod units;
 mod value;
 
 use clap::Parser;
@@ -44,6 +54,17 @@ pub enum Failure {
     Lib(skewbook::Error),
     /// Writing the output failed.
     Io(io::Error),
+    /// The output guard found a number that is not finite.
+    NotFinite(skewbook::output::NonFinite),
+}
+
+impl From<skewbook::output::WriteError> for Failure {
+    fn from(e: skewbook::output::WriteError) -> Self {
+        match e {
+            skewbook::output::WriteError::Io(e) => Failure::Io(e),
+            skewbook::output::WriteError::NotFinite(n) => Failure::NotFinite(n),
+        }
+    }
 }
 
 impl From<skewbook::Error> for Failure {
@@ -79,6 +100,13 @@ fn main() -> ExitCode {
         Err(Failure::Io(e)) if e.kind() == io::ErrorKind::BrokenPipe => ExitCode::SUCCESS,
         Err(Failure::Io(e)) => {
             eprintln!("error: writing output: {e}");
+            ExitCode::from(2)
+        }
+        Err(Failure::NotFinite(n)) => {
+            eprintln!(
+                "error: output guard: {n}; nothing was printed (this is a bug in skewbook: \
+                 please report it with the command and its input)"
+            );
             ExitCode::from(2)
         }
         Err(Failure::Lib(e)) => {

@@ -7,8 +7,9 @@ use std::io::Write;
 
 /// Runs the command.
 pub fn run(args: PriceArgs, out: &mut dyn Write) -> Result<Outcome, Failure> {
+    let rho = crate::units::CORRELATION.read(args.correlation)?;
     let (snapshot, opts) = crate::curve::load(&args.market)?;
-    let report = skewbook::report::price::build(&snapshot, &opts, args.correlation)?;
+    let report = skewbook::report::price::build(&snapshot, &opts, rho)?;
     write_report(out, &report, args.market.format.into())?;
     Ok(Outcome::Clean)
 }

@@ -12,7 +12,7 @@ pub fn run(args: SurfaceArgs, out: &mut dyn Write) -> Result<Outcome, Failure> {
         &snapshot,
         &opts,
         args.interp.into(),
-        args.step_pct / 100.0,
+        crate::units::to_fraction(args.step_pct),
         args.date,
     )?;
     write_report(out, &report, args.market.format.into())?;

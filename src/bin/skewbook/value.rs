@@ -31,8 +31,7 @@ pub fn run(args: ValueArgs, out: &mut dyn Write) -> Result<Outcome, Failure> {
                 .to_string(),
         ));
     }
-    let opts = args.curve.options();
-    opts.validate()?;
+    let opts = args.curve.options()?;
     let snapshot = read_snapshot(&args.skew)?;
     for w in &snapshot.warnings {
         eprintln!("warning: {w}");
