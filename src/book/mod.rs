@@ -19,10 +19,7 @@ pub use market::{Market, TradeTerms};
 pub use price::{value_trade, Priced, Valuation};
 
 use crate::error::Result;
-use crate::tranche::TrancheSchedule;
-use chrono::NaiveDate;
 use risk::{BucketedRisk, Risk, RiskContext};
-use std::collections::HashMap;
 
 /// Choices for valuing a book.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -77,23 +74,10 @@ pub fn value_book(
         Vec::new()
     };
     let ctx = RiskContext::new(market, opts.mapping, opts.names, &pools, opts.buckets)?;
-    let mut schedules: HashMap<(&str, NaiveDate), TrancheSchedule> = HashMap::new();
     let mut out = Vec::with_capacity(trades.len());
     for t in trades {
-        let key = (t.pool.as_str(), t.maturity);
-        let schedule = match schedules.entry(key) {
-            std::collections::hash_map::Entry::Occupied(e) => e.into_mut(),
-            std::collections::hash_map::Entry::Vacant(e) => {
-                let pool = market.pool(&t.pool).ok_or_else(|| {
-                    crate::Error::msg(
-                        crate::ErrorKind::InvalidInput,
-                        format!("unknown pool \"{}\"", t.pool),
-                    )
-                })?;
-                e.insert(TrancheSchedule::for_pool(pool, t.maturity)?)
-            }
-        };
-        let priced = price::value_trade_on(t, market, opts.mapping, schedule)?;
+        let schedule = ctx.base_schedules().get(market, &t.pool, t.maturity)?;
+        let priced = price::value_trade_on(t, market, opts.mapping, &schedule)?;
         let (risk, buckets) = match priced.valuation().filter(|_| opts.risk) {
             Some(v) => (
                 Some(ctx.risk(t, v)?),

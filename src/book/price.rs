@@ -111,6 +111,31 @@ pub fn value_trade_on(
     mapping: Mapping,
     schedule: &TrancheSchedule,
 ) -> Result<Priced> {
+    evaluate(t, market, mapping, schedule, true)
+}
+
+/// The trade's pv alone (no loss path, no flags), `None` when it is not
+/// priced: what a risk figure reprices.
+///
+/// # Errors
+/// As [`value_trade`].
+pub fn pv_on(
+    t: &TradeTerms,
+    market: &Market,
+    mapping: Mapping,
+    schedule: &TrancheSchedule,
+) -> Result<Option<f64>> {
+    Ok(evaluate(t, market, mapping, schedule, false)?.pv())
+}
+
+/// Values a trade; `detail` adds the expected-loss path check and flags.
+fn evaluate(
+    t: &TradeTerms,
+    market: &Market,
+    mapping: Mapping,
+    schedule: &TrancheSchedule,
+    detail: bool,
+) -> Result<Priced> {
     if market.surface.is_empty() {
         return Ok(Priced::NotPriced(Flag::NoSkew));
     }
@@ -167,22 +192,41 @@ pub fn value_trade_on(
     // A bound at 0 or 100% needs no correlation: any value gives the same legs.
     let rho_a = a.rho.or(d.rho).unwrap_or(0.5);
     let rho_d = d.rho.unwrap_or(rho_a);
-    let legs = v.legs(rho_a, rho_d);
+    let (legs, losses) = if detail {
+        v.legs_and_losses(rho_a, rho_d)
+    } else {
+        (v.legs(rho_a, rho_d), Vec::new())
+    };
+    let running = legs.protection - t.coupon * legs.annuity;
+    let pv = t.sign * t.notional * running;
     let mut flags = Vec::new();
+    if !detail {
+        return Ok(Priced::Valued(Valuation {
+            rho_attach: a.rho,
+            rho_detach: d.rho,
+            index_equivalent_attach: a.k_index,
+            index_equivalent_detach: d.k_index,
+            protection: legs.protection,
+            annuity: legs.annuity,
+            par_spread: None,
+            upfront: 0.0,
+            expected_loss: legs.expected_loss,
+            pv,
+            flags,
+        }));
+    }
     if a.extrapolated_detachment || d.extrapolated_detachment {
         flags.push(Flag::ExtrapolatedDetachment);
     }
     if a.extrapolated_maturity || d.extrapolated_maturity || outside_maturities(market, t) {
         flags.push(Flag::ExtrapolatedMaturity);
     }
-    let losses = v.expected_losses(rho_a, rho_d);
     if losses.iter().any(|&x| x < -NEGATIVE_LOSS_TOLERANCE) {
         flags.push(Flag::NegativeExpectedLoss);
     }
     if a.several || d.several {
         flags.push(Flag::SeveralMappings);
     }
-    let running = legs.protection - t.coupon * legs.annuity;
     Ok(Priced::Valued(Valuation {
         rho_attach: a.rho,
         rho_detach: d.rho,
@@ -193,7 +237,7 @@ pub fn value_trade_on(
         par_spread: v.model_spread(&legs),
         upfront: v.model_upfront(&legs),
         expected_loss: legs.expected_loss,
-        pv: t.sign * t.notional * running,
+        pv,
         flags,
     }))
 }

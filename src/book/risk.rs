@@ -18,10 +18,61 @@
 
 use super::mapping::Mapping;
 use super::market::{Market, TradeTerms};
-use super::price::{value_trade, Priced, Valuation};
+use super::price::{pv_on, Valuation};
 use crate::curve::PoolBump;
-use crate::error::Result;
-use crate::tranche::{bounds::MIN_WIDTH, Tranche};
+use crate::error::{Error, ErrorKind, Result};
+use crate::tranche::{bounds::MIN_WIDTH, Tranche, TrancheSchedule};
+use chrono::NaiveDate;
+use std::cell::RefCell;
+use std::collections::HashMap;
+use std::rc::Rc;
+
+/// Tranche schedules of one market's pools, built on first use.
+#[derive(Debug, Clone, Default)]
+pub struct Schedules {
+    built: RefCell<HashMap<(String, NaiveDate), Rc<TrancheSchedule>>>,
+}
+
+impl Schedules {
+    /// The schedule of pool `pool` of `market` to `maturity`.
+    ///
+    /// # Errors
+    /// [`ErrorKind::InvalidInput`] for an unknown pool or a maturity not
+    /// after the trade date.
+    pub fn get(
+        &self,
+        market: &Market,
+        pool: &str,
+        maturity: NaiveDate,
+    ) -> Result<Rc<TrancheSchedule>> {
+        let key = (pool.to_string(), maturity);
+        if let Some(s) = self.built.borrow().get(&key) {
+            return Ok(Rc::clone(s));
+        }
+        let p = market.pool(pool).ok_or_else(|| {
+            Error::msg(ErrorKind::InvalidInput, format!("unknown pool \"{pool}\""))
+        })?;
+        let s = Rc::new(TrancheSchedule::for_pool(p, maturity)?);
+        self.built.borrow_mut().insert(key, Rc::clone(&s));
+        Ok(s)
+    }
+}
+
+/// A bumped market with its own schedules (its pools' curves differ).
+#[derive(Debug, Clone)]
+struct Bumped {
+    market: Market,
+    schedules: Schedules,
+}
+
+impl Bumped {
+    fn new(market: Market) -> Bumped {
+        Bumped {
+            market,
+            schedules: Schedules::default(),
+        }
+    }
+}
 
 /// A par-spread bump of 1 bp.
 pub const SPREAD_BUMP: f64 = 1e-4;
@@ -55,27 +106,29 @@ pub struct Risk {
 pub struct BucketedRisk {
     /// spread_01 with one pillar of the trade's pool bumped at a time,
     /// shortest first: (pillar maturity, figure).
-    pub spread_01: Vec<(chrono::NaiveDate, Option<f64>)>,
+    pub spread_01: Vec<(NaiveDate, Option<f64>)>,
     /// correlation_01 with one surface knot bumped at a time: (maturity,
     /// detachment, figure).
-    pub correlation_01: Vec<(chrono::NaiveDate, f64, Option<f64>)>,
+    pub correlation_01: Vec<(NaiveDate, f64, Option<f64>)>,
 }
 
 /// Markets bumped one way each, built once and shared by every trade.
 #[derive(Debug, Clone)]
 struct PoolBumps {
     name: String,
-    spread: Option<Market>,
-    recovery: Option<Market>,
-    pillars: Vec<Option<Market>>,
+    spread: Option<Bumped>,
+    recovery: Option<Bumped>,
+    pillars: Vec<Option<Bumped>>,
 }
 
-/// The base market and its bumped copies for one run.
+/// The base market and its bumped copies for one run, with their schedules.
+/// Surface bumps leave the pools alone, so they share the base schedules.
 #[derive(Debug, Clone)]
 pub struct RiskContext<'a> {
     market: &'a Market,
     mapping: Mapping,
     names: usize,
+    base: Schedules,
     correlation: Option<Market>,
     knots: Vec<Option<Market>>,
     pools: Vec<PoolBumps>,
@@ -113,6 +166,7 @@ impl<'a> RiskContext<'a> {
                                 },
                             )
                             .ok()
+                            .map(Bumped::new)
                     })
                     .collect()
             } else {
@@ -122,10 +176,12 @@ impl<'a> RiskContext<'a> {
                 name: name.to_string(),
                 spread: market
                     .with_pool_bumped(name, PoolBump::ParSpread(SPREAD_BUMP))
-                    .ok(),
+                    .ok()
+                    .map(Bumped::new),
                 recovery: market
                     .with_pool_bumped(name, PoolBump::Recovery(RECOVERY_BUMP))
-                    .ok(),
+                    .ok()
+                    .map(Bumped::new),
                 pillars,
             });
         }
@@ -154,31 +210,46 @@ impl<'a> RiskContext<'a> {
             market,
             mapping,
             names: names.max(1),
+            base: Schedules::default(),
             correlation,
             knots,
             pools: bumps,
         })
     }
 
-    fn pv_in(&self, t: &TradeTerms, m: Option<&Market>) -> Result<Option<f64>> {
+    /// The schedules of the unbumped market's pools.
+    pub fn base_schedules(&self) -> &Schedules {
+        &self.base
+    }
+
+    /// pv of `t` in a market bumped in its pools (own schedules).
+    fn pv_bumped(&self, t: &TradeTerms, b: Option<&Bumped>) -> Result<Option<f64>> {
+        let Some(b) = b else { return Ok(None) };
+        let s = b.schedules.get(&b.market, &t.pool, t.maturity)?;
+        pv_on(t, &b.market, self.mapping, &s)
+    }
+
+    /// pv of `t` in a market with the base pools (base schedules).
+    fn pv_same_pools(&self, t: &TradeTerms, m: Option<&Market>) -> Result<Option<f64>> {
         let Some(m) = m else { return Ok(None) };
-        Ok(value_trade(t, m, self.mapping)?.pv())
+        let s = self.base.get(m, &t.pool, t.maturity)?;
+        pv_on(t, m, self.mapping, &s)
     }
 
     /// The risk figures of trade `t` whose base valuation is `base`.
     ///
     /// # Errors
-    /// As [`value_trade`].
+    /// As [`super::value_trade`].
     pub fn risk(&self, t: &TradeTerms, base: &Valuation) -> Result<Risk> {
         let pv = base.pv;
         let diff = |x: Option<f64>| x.map(|x| x - pv);
         let bumps = self.pools.iter().find(|b| b.name == t.pool);
         let spread_market = bumps.and_then(|b| b.spread.as_ref());
-        let spread_01 = diff(self.pv_in(t, spread_market)?);
-        let correlation_01 = diff(self.pv_in(t, self.correlation.as_ref())?);
-        let recovery_01 = diff(self.pv_in(t, bumps.and_then(|b| b.recovery.as_ref()))?);
+        let spread_01 = diff(self.pv_bumped(t, spread_market)?);
+        let correlation_01 = diff(self.pv_same_pools(t, self.correlation.as_ref())?);
+        let recovery_01 = diff(self.pv_bumped(t, bumps.and_then(|b| b.recovery.as_ref()))?);
         let jump_to_default = self.jump_to_default(t, pv)?;
-        let index_01 = spread_market.and_then(|m| self.index_01(t, m));
+        let index_01 = spread_market.and_then(|b| self.index_01(t, &b.market));
         let delta = match (spread_01, index_01) {
             (Some(s), Some(i)) if i != 0.0 => Some(s / i),
             _ => None,
@@ -196,7 +267,7 @@ impl<'a> RiskContext<'a> {
     /// Bucketed risk of trade `t` (empty unless the context was built with buckets).
     ///
     /// # Errors
-    /// As [`value_trade`].
+    /// As [`super::value_trade`].
     pub fn buckets(&self, t: &TradeTerms, base: &Valuation) -> Result<BucketedRisk> {
         let pv = base.pv;
         let mut out = BucketedRisk::default();
@@ -206,14 +277,14 @@ impl<'a> RiskContext<'a> {
         ) {
             for (p, m) in pool.pillars.iter().zip(&b.pillars) {
                 out.spread_01
-                    .push((p.maturity, self.pv_in(t, m.as_ref())?.map(|x| x - pv)));
+                    .push((p.maturity, self.pv_bumped(t, m.as_ref())?.map(|x| x - pv)));
             }
         }
         for ((_, _, maturity, knot), m) in self.market.surface.knots().iter().zip(&self.knots) {
             out.correlation_01.push((
                 *maturity,
                 knot.detach,
-                self.pv_in(t, m.as_ref())?.map(|x| x - pv),
+                self.pv_same_pools(t, m.as_ref())?.map(|x| x - pv),
             ));
         }
         Ok(out)
@@ -243,10 +314,9 @@ impl<'a> RiskContext<'a> {
             notional: t.notional * left / w,
             ..t.clone()
         };
-        Ok(match value_trade(&after, self.market, self.mapping)? {
-            Priced::Valued(v) => Some(paid + v.pv - pv),
-            Priced::NotPriced(_) => None,
-        })
+        Ok(self
+            .pv_same_pools(&after, Some(self.market))?
+            .map(|p| paid + p - pv))
     }
 
     /// Change under the spread bump of a protection buyer's contract of
@@ -255,7 +325,7 @@ impl<'a> RiskContext<'a> {
     fn index_01(&self, t: &TradeTerms, bumped: &Market) -> Option<f64> {
         let pool = self.market.pool(&t.pool)?;
         let after = bumped.pool(&t.pool)?;
-        let gap = |m: chrono::NaiveDate| (m - t.maturity).num_days().abs();
+        let gap = |m: NaiveDate| (m - t.maturity).num_days().abs();
         let k = (0..pool.pillars.len()).min_by(|&i, &j| {
             let (pi, pj) = (&pool.pillars[i], &pool.pillars[j]);
             gap(pi.maturity)

@@ -163,31 +163,41 @@ impl TrancheSchedule {
             // this correlation is built once for every date.
             Method::ClosedForm => {
                 let corr = Correlation::new(rho);
-                self.sum_legs(|h| base.closed_form(h, &corr))
+                self.sum_legs(|h| base.closed_form(h, &corr), None)
             }
-            Method::Quadrature => self.sum_legs(|h| base.expectation(h, rho, method)),
+            Method::Quadrature => self.sum_legs(|h| base.expectation(h, rho, method), None),
         }
     }
 
-    /// Expected loss E[min(L, K)] of a base tranche at step-in and at every
-    /// period end (the dates at which the legs read it), pool units.
-    pub fn base_expected_losses(&self, base: &BaseTranche, rho: f64) -> Vec<f64> {
+    /// [`Self::base_legs`] and, in the same pass, the expected loss
+    /// E[min(L, K)] at step-in and at every period end (pool units).
+    pub fn base_legs_and_losses(&self, base: &BaseTranche, rho: f64) -> (BaseLegs, Vec<f64>) {
         if base.detach <= 0.0 {
-            return vec![0.0; self.horizons.len()];
+            return (BaseLegs::default(), vec![0.0; self.horizons.len()]);
         }
         let corr = Correlation::new(rho);
-        self.horizons
-            .iter()
-            .map(|h| base.closed_form(h, &corr).loss)
-            .collect()
+        let mut path = Vec::with_capacity(self.horizons.len());
+        let legs = self.sum_legs(|h| base.closed_form(h, &corr), Some(&mut path));
+        (legs, path)
     }
 
-    /// Sums the legs over the schedule from the base expectation at each date.
-    fn sum_legs(&self, at: impl Fn(&Horizon) -> BaseExpectation) -> BaseLegs {
+    /// Sums the legs over the schedule from the base expectation at each
+    /// date, pushing each date's expected loss onto `path` when given.
+    fn sum_legs(
+        &self,
+        at: impl Fn(&Horizon) -> BaseExpectation,
+        mut path: Option<&mut Vec<f64>>,
+    ) -> BaseLegs {
         let mut legs = BaseLegs::default();
         let mut prev = at(&self.horizons[0]);
+        if let Some(p) = path.as_deref_mut() {
+            p.push(prev.loss);
+        }
         for (i, h) in self.horizons[1..].iter().enumerate() {
             let cur = at(h);
+            if let Some(p) = path.as_deref_mut() {
+                p.push(cur.loss);
+            }
             let df = self.df_pay[i];
             let w = self.half_accrual_df[i];
             legs.protection += df * (cur.loss - prev.loss);

@@ -117,13 +117,20 @@ impl<'a> TrancheValuer<'a> {
         self.combine(&a, &d, true)
     }
 
-    /// Expected tranche loss (fraction of the width) at step-in and at every
-    /// period end, with the bases at their own correlations. Not clamped.
-    pub fn expected_losses(&self, rho_attach: f64, rho_detach: f64) -> Vec<f64> {
+    /// [`Self::legs`] and, in the same pass, the expected tranche loss
+    /// (fraction of the width) at step-in and at every period end, with the
+    /// bases at their own correlations. Not clamped.
+    pub fn legs_and_losses(&self, rho_attach: f64, rho_detach: f64) -> (TrancheLegs, Vec<f64>) {
         let w = self.tranche.width();
-        let d = self.schedule.base_expected_losses(&self.upper, rho_detach);
-        let a = self.schedule.base_expected_losses(&self.lower, rho_attach);
-        d.iter().zip(&a).map(|(d, a)| (d - a) / w).collect()
+        let (d, dp) = self.schedule.base_legs_and_losses(&self.upper, rho_detach);
+        let (a, ap) = self.schedule.base_legs_and_losses(&self.lower, rho_attach);
+        let path = dp.iter().zip(&ap).map(|(d, a)| (d - a) / w).collect();
+        (self.combine(&a, &d, false), path)
+    }
+
+    /// The expected tranche loss path alone; see [`Self::legs_and_losses`].
+    pub fn expected_losses(&self, rho_attach: f64, rho_detach: f64) -> Vec<f64> {
+        self.legs_and_losses(rho_attach, rho_detach).1
     }
 
     /// The tranche's legs from its two base tranches' legs (pool units):
