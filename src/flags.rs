@@ -196,6 +196,16 @@ mod tests {
     use super::Flag;
     use std::collections::HashSet;
 
+    /// The README's flag table is this list, row for row.
+    #[test]
+    fn readme_lists_every_flag_with_its_meaning() {
+        let readme = include_str!("../README.md");
+        for f in Flag::ALL {
+            let row = format!("| `{}` | {} |", f.name(), f.meaning());
+            assert!(readme.contains(&row), "README lacks: {row}");
+        }
+    }
+
     #[test]
     fn names_and_short_forms_are_unique() {
         let names: HashSet<_> = Flag::ALL.iter().map(|f| f.name()).collect();
