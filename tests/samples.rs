@@ -13,7 +13,10 @@ fn snapshots() -> Vec<String> {
         .map(|e| e.file_name().to_string_lossy().into_owned())
         .filter(|n| {
             n.ends_with(".csv")
-                && (n.starts_with("hgx-2") || n.starts_with("lhy-2") || n.contains("history-"))
+                && (n.starts_with("hgx-2")
+                    || n.starts_with("lhy-2")
+                    || n.starts_with("kcx-2")
+                    || n.contains("history-"))
         })
         .map(|n| format!("market-samples/{n}"))
         .collect();
@@ -50,6 +53,8 @@ fn every_command_runs_on_every_sample_in_every_format() {
                 vec!["curve", file.as_str()],
                 vec!["price", file.as_str(), "--correlation", "30"],
                 vec!["implied", file.as_str()],
+                vec!["surface", file.as_str(), "--step-pct", "1"],
+                vec!["surface", file.as_str(), "--interp", "pchip", "--step-pct", "1"],
             ] {
                 let mut args = cmd.clone();
                 args.extend(["--format", format]);
