@@ -31,6 +31,8 @@ mod samples;
 mod skew;
 /// `surface` and `value` on the command line.
 mod skew_cli;
+/// `skew-history` against `implied` and `surface`.
+mod skew_history;
 /// Snapshot reader: valid files, every validation rule, malformed fixtures, fuzzing.
 mod snapshot;
 /// Trades and pools readers: valid files, round trips, every rule located.

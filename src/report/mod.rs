@@ -10,6 +10,7 @@ pub mod implied;
 pub mod loss;
 pub mod price;
 pub mod realworld;
+pub mod skew_history;
 pub mod surface;
 pub mod value;
 

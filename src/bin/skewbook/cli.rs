@@ -35,6 +35,28 @@ pub enum Command {
     Surface(SurfaceArgs),
     /// A book of tranche trades priced off one date's skew, with risk.
     Value(ValueArgs),
+    /// The skew through time: base and compound correlations per date, and
+    /// their change since the previous date.
+    SkewHistory(SkewHistoryArgs),
+}
+
+/// `skewbook skew-history`.
+#[derive(Debug, Args)]
+pub struct SkewHistoryArgs {
+    #[command(flatten)]
+    pub market: MarketArgs,
+    /// Detachments in percent read off each date's surface, comma-separated
+    /// (e.g. 3,7,10,15); none by default.
+    #[arg(
+        long,
+        value_name = "PCT,PCT",
+        value_delimiter = ',',
+        allow_negative_numbers = true
+    )]
+    pub at: Vec<f64>,
+    /// Interpolation of base correlation across detachment for `--at`.
+    #[arg(long, value_enum, default_value_t)]
+    pub interp: InterpArg,
 }
 
 /// Interpolation of base correlation across detachment.

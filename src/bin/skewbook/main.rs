@@ -19,6 +19,7 @@ mod implied;
 mod loss;
 mod price;
 mod realworld;
+mod skew_history;
 mod surface;
 mod units;
 mod value;
@@ -45,6 +46,7 @@ fn run(cli: Cli, out: &mut dyn Write) -> Result<Outcome, Failure> {
         Command::Realworld(a) => realworld::run(a, out),
         Command::Surface(a) => surface::run(a, out),
         Command::Value(a) => value::run(a, out),
+        Command::SkewHistory(a) => skew_history::run(a, out),
     }
 }
 
