@@ -28,3 +28,11 @@ for h in hgx-default-rates lhy-default-counts; do
 done
 run "realworld-hgx-against" realworld market-samples/hgx-default-rates.csv --against market-samples/hgx-2026-06-18.csv
 run "realworld-lhy-against" realworld market-samples/lhy-default-counts.csv --against market-samples/lhy-2026-06-18.csv
+run "implied-kcx-2026-06-18" implied market-samples/kcx-2026-06-18.csv
+for i in linear pchip; do
+  run "surface-kcx-$i" surface market-samples/kcx-2026-06-18.csv --interp "$i" --step-pct 1
+done
+for m in none tlp; do
+  run "value-kcx-$m" value market-samples/kcx-trades.csv --skew market-samples/kcx-2026-06-18.csv --pools market-samples/kcx-pools.csv --mapping "$m"
+done
+run "skew-history-hgx" skew-history market-samples/hgx-history-2026-06.csv --at 5,10
