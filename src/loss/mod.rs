@@ -41,6 +41,8 @@
 //! - [`base_tranche`] and [`tranche`] are one-shot conveniences (closed
 //!   form) that build the above and evaluate once.
 //! - [`Method`] chooses the closed form or the quadrature.
+//! - [`finite`]: a pool of `n` names instead of the large-pool limit
+//!   ([`FinitePool`], [`BaseTranche::finite`]), chosen by [`PoolModel`].
 //! - [`Correlation`] precomputes what depends on `rho` alone (square roots,
 //!   the bivariate normal rule); `closed_form(h, &corr)` on both tranche
 //!   types is the fast path for valuing many horizons at one `rho`.
@@ -71,7 +73,10 @@
 //!   [`crate::math::bvn`]).
 
 pub mod closed;
+pub mod finite;
 pub mod quadrature;
+
+pub use finite::{FinitePool, PoolModel};
 
 use crate::error::{Error, ErrorKind, Result};
 use crate::math::bvn::Bvn;
