@@ -13,6 +13,10 @@ mod cli_errors;
 mod command_line;
 /// Index legs and the hazard bootstrap.
 mod curve;
+/// The finite pool of n names: mpmath, its own rule with twice the nodes,
+/// one name in closed form, the large-pool limit at rate 1/n, a Monte Carlo
+/// of the copula, Hull and White (2004) Table 7.
+mod finite;
 /// The command line against the independent Python implementation's fixtures.
 mod independent;
 /// Interpolation of the skew: PCHIP and linear against scipy, isotonic

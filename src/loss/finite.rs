@@ -289,7 +289,14 @@ impl FinitePool {
             };
         }
         let m = (m_real as usize).max(1);
-        if h.pd >= 1.0 {
+        if h.pd >= 1.0 || n == 1 {
+            // one name: min(D u, cap) = D min(u, cap) is linear in p
+            if n == 1 {
+                return Expectation {
+                    value: h.pd * top,
+                    drho: 0.0,
+                };
+            }
             return Expectation {
                 value: top,
                 drho: 0.0,

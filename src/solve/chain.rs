@@ -10,6 +10,7 @@ use super::compound::{compound_roots_from_scan, scan_grid, CompoundSolve};
 use crate::curve::Pool;
 use crate::error::Result;
 use crate::flags::Flag;
+use crate::loss::PoolModel;
 use crate::market::{tiles_from_zero, MarketDate, TrancheQuote};
 use crate::tranche::{BaseLegs, Tranche, TrancheSchedule, TrancheValuer};
 use chrono::NaiveDate;
@@ -178,6 +179,15 @@ impl DateImplied {
 /// price (bounds outside [0, 1], a maturity not after the trade date).
 /// Quotes with no solution are not errors: they are outcomes and flags.
 pub fn implied_date(md: &MarketDate, pool: Pool) -> Result<DateImplied> {
+    implied_date_with(md, pool, PoolModel::LargePool)
+}
+
+/// [`implied_date`] with the tranches priced in `model` (the large pool,
+/// or a pool of n names): the same solvers, flags and outcomes.
+///
+/// # Errors
+/// As [`implied_date`].
+pub fn implied_date_with(md: &MarketDate, pool: Pool, model: PoolModel) -> Result<DateImplied> {
     let mut maturities = Vec::new();
     let mut i = 0;
     while i < md.tranches.len() {
@@ -187,7 +197,7 @@ pub fn implied_date(md: &MarketDate, pool: Pool) -> Result<DateImplied> {
             .take_while(|t| t.maturity == m)
             .collect();
         i += group.len();
-        let schedule = TrancheSchedule::for_pool(&pool, m)?;
+        let schedule = TrancheSchedule::for_pool_with(&pool, m, model)?;
         maturities.push(implied_maturity(&schedule, &group)?);
     }
     Ok(DateImplied { pool, maturities })

@@ -14,7 +14,9 @@
 use crate::curve::{DiscountCurve, HazardCurve, Pool};
 use crate::dates::Schedule;
 use crate::error::{Error, ErrorKind, Result};
-use crate::loss::{BaseExpectation, BaseTranche, Correlation, Horizon, Method};
+use crate::loss::{
+    BaseExpectation, BaseTranche, Correlation, FinitePool, Horizon, Method, PoolModel,
+};
 use chrono::NaiveDate;
 
 /// Everything about a tranche's schedule on one pool that does not depend
@@ -34,6 +36,9 @@ pub struct TrancheSchedule {
     maturity: NaiveDate,
     /// Pool recovery.
     recovery: f64,
+    /// The pool of n names when the model is [`PoolModel::Names`]; `None`
+    /// for the large pool.
+    finite: Option<FinitePool>,
 }
 
 /// Legs of a base tranche [0, K] in pool-notional units, with their
@@ -115,7 +120,37 @@ impl TrancheSchedule {
             df_settlement: discount.df(s.settlement_time()),
             maturity,
             recovery,
+            finite: None,
         })
+    }
+
+    /// [`Self::for_pool`] priced in `model`: the large pool, or a pool of
+    /// n names ([`crate::loss::finite`]). Every leg, solver and report on
+    /// the schedule then uses that model.
+    ///
+    /// # Errors
+    /// As [`Self::for_pool`]; [`ErrorKind::InvalidInput`] for a pool of 0 names.
+    pub fn for_pool_with(pool: &Pool, maturity: NaiveDate, model: PoolModel) -> Result<Self> {
+        TrancheSchedule::for_pool(pool, maturity)?.with_model(model)
+    }
+
+    /// This schedule priced in `model`.
+    ///
+    /// # Errors
+    /// [`ErrorKind::InvalidInput`] for a pool of 0 names.
+    pub fn with_model(mut self, model: PoolModel) -> Result<Self> {
+        self.finite = match model {
+            PoolModel::LargePool => None,
+            PoolModel::Names(n) => Some(FinitePool::new(n)?),
+        };
+        Ok(self)
+    }
+
+    /// The pool model the legs are priced in.
+    pub fn model(&self) -> PoolModel {
+        self.finite
+            .as_ref()
+            .map_or(PoolModel::LargePool, |p| PoolModel::Names(p.names()))
     }
 
     /// DF at the upfront's settlement date.
@@ -153,10 +188,15 @@ impl TrancheSchedule {
     }
 
     /// [`Self::base_legs`] with the expectation evaluated by `method`
-    /// (closed form, or the independent quadrature over the factor).
+    /// (closed form, or the independent quadrature over the factor). A
+    /// finite pool has one evaluation and ignores `method`.
     pub fn base_legs_by(&self, base: &BaseTranche, rho: f64, method: Method) -> BaseLegs {
         if base.detach <= 0.0 {
             return BaseLegs::default();
+        }
+        if let Some(pool) = &self.finite {
+            let corr = Correlation::new(rho);
+            return self.sum_legs(|h| base.finite(h, &corr, pool), None);
         }
         match method {
             // The closed form's fast path: the bivariate normal's rule for
@@ -177,7 +217,10 @@ impl TrancheSchedule {
         }
         let corr = Correlation::new(rho);
         let mut path = Vec::with_capacity(self.horizons.len());
-        let legs = self.sum_legs(|h| base.closed_form(h, &corr), Some(&mut path));
+        let legs = match &self.finite {
+            Some(pool) => self.sum_legs(|h| base.finite(h, &corr, pool), Some(&mut path)),
+            None => self.sum_legs(|h| base.closed_form(h, &corr), Some(&mut path)),
+        };
         (legs, path)
     }
 

@@ -13,7 +13,7 @@ p(z) = N((G(PD) - sqrt(rho) z) / sqrt(1 - rho)). For the base tranche
 each expectation an mpmath tanh-sinh integral over z of the binomial sum
 times the normal density, split at the points where p(z) crosses K/(1-R)
 and (1-K)/R and around the steep part of p. The derivatives in rho are
-mpmath's numerical derivatives of those integrals (not the analytic
+five-point central differences of those integrals (step 1e-6) (not the analytic
 formula the Rust code uses).
 
 Writes tests/fixtures/finite.json. Run: python3 tests/reference/finite_fixtures.py
@@ -31,12 +31,19 @@ def expected_min(n, pd, rho, unit, cap):
     c = mp.sqrt(2) * mp.erfinv(2 * mp.mpf(pd) - 1)
     sr, s1 = mp.sqrt(rho), mp.sqrt(1 - rho)
     g = [min(k * unit, cap) for k in range(n + 1)]
-    choose = [mp.binomial(n, k) for k in range(n + 1)]
+    ratios = [mp.mpf(n - k) / (k + 1) for k in range(n)]
 
     def f(z):
-        p = mp.ncdf((c - sr * z) / s1)
-        q = 1 - p
-        return sum(choose[k] * p**k * q ** (n - k) * g[k] for k in range(n + 1)) * mp.npdf(z)
+        v = (c - sr * z) / s1
+        p, q = mp.ncdf(v), mp.ncdf(-v)
+        if q == 0:
+            return g[n] * mp.npdf(z)
+        term, total, ratio = q**n, mp.mpf(0), p / q
+        for k in range(n + 1):
+            total += term * g[k]
+            if k < n:
+                term *= ratios[k] * ratio
+        return total * mp.npdf(z)
 
     pts = [mp.mpf(0)]
     x = cap / (n * unit)
@@ -47,6 +54,11 @@ def expected_min(n, pd, rho, unit, cap):
         pts.append(c / sr + s * t)
     pts = sorted(set(p for p in pts if -12 < p < 12))
     return mp.quad(f, [-mp.inf] + pts + [mp.inf])
+
+
+def derivative(f, x, h=mp.mpf("1e-6")):
+    """Five-point central difference (error ~ h^4 f^(5) / 30, far below 1e-15)."""
+    return (f(x - 2 * h) - 8 * f(x - h) + 8 * f(x + h) - f(x + 2 * h)) / (12 * h)
 
 
 def base(n, pd, rho, recovery, k):
@@ -66,7 +78,7 @@ CASES = [
     (125, 0.05, 0.3, 0.4, 0.07),
     (125, 0.01, 0.1, 0.4, 0.005),
     (125, 0.3, 0.6, 0.4, 0.3),
-    (125, 0.05, 0.9999, 0.4, 0.07),
+    (125, 0.05, 0.99, 0.4, 0.07),
     (125, 0.0001, 0.01, 0.4, 0.03),
     (125, 0.2, 0.3, 0.4, 0.7),
     (100, 0.048771, 0.1, 0.4, 0.06),
@@ -79,7 +91,7 @@ def main():
     for n, pd, rho, recovery, k in CASES:
         loss, outstanding = base(n, pd, mp.mpf(rho), recovery, k)
         dloss, dout = (
-            mp.diff(lambda r: base(n, pd, r, recovery, k)[i], mp.mpf(rho)) for i in (0, 1)
+            derivative(lambda r: base(n, pd, r, recovery, k)[i], mp.mpf(rho)) for i in (0, 1)
         )
         out.append(
             {
