@@ -222,7 +222,10 @@ fn one_hundred_twenty_five_names_against_a_monte_carlo_of_the_copula() {
 /// one-factor Gaussian rows, as quoted in issue 15: 100 names, hazard 1% a
 /// year, recovery 40%, 5 years, rate 5% continuously compounded, quarterly
 /// premiums; spreads in bp.
-const HULL_WHITE: [(f64, [(f64, f64, f64); 4]); 2] = [
+/// (attachment, detachment, spread in bp) of one row.
+type Row = (f64, f64, f64);
+
+const HULL_WHITE: [(f64, [Row; 4]); 2] = [
     (
         0.1,
         [

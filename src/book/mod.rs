@@ -19,6 +19,7 @@ pub use market::{Market, TradeTerms};
 pub use price::{value_trade, Priced, Valuation};
 
 use crate::error::Result;
+use crate::loss::PoolModel;
 use risk::{BucketedRisk, Risk, RiskContext};
 
 /// Choices for valuing a book.
@@ -68,12 +69,28 @@ pub fn value_book(
     market: &Market,
     opts: &BookOptions,
 ) -> Result<Vec<TradeResult>> {
+    value_book_with(trades, market, opts, PoolModel::LargePool)
+}
+
+/// [`value_book`] with every trade priced in `model`: the large pool, or a
+/// pool of n names (jump-to-default then leaves n - 1). Bespoke mapping
+/// (`tlp`, `probability`) stays a large-pool convention in either model.
+///
+/// # Errors
+/// As [`value_book`]; [`crate::ErrorKind::InvalidInput`] for a pool of 0 names.
+pub fn value_book_with(
+    trades: &[TradeTerms],
+    market: &Market,
+    opts: &BookOptions,
+    model: PoolModel,
+) -> Result<Vec<TradeResult>> {
     let pools: Vec<&str> = if opts.risk {
         trades.iter().map(|t| t.pool.as_str()).collect()
     } else {
         Vec::new()
     };
-    let ctx = RiskContext::new(market, opts.mapping, opts.names, &pools, opts.buckets)?;
+    let ctx =
+        RiskContext::new(market, opts.mapping, opts.names, &pools, opts.buckets)?.with_model(model);
     let mut out = Vec::with_capacity(trades.len());
     for t in trades {
         let schedule = ctx.base_schedules().get(market, &t.pool, t.maturity)?;

@@ -21,19 +21,30 @@ use super::market::{Market, TradeTerms};
 use super::price::{pv_on, Valuation};
 use crate::curve::PoolBump;
 use crate::error::{Error, ErrorKind, Result};
+use crate::loss::PoolModel;
 use crate::tranche::{bounds::MIN_WIDTH, Tranche, TrancheSchedule};
 use chrono::NaiveDate;
 use std::cell::RefCell;
 use std::collections::HashMap;
 use std::rc::Rc;
 
-/// Tranche schedules of one market's pools, built on first use.
+/// Tranche schedules of one market's pools, built on first use, priced in
+/// one pool model (the large pool unless [`Schedules::with_model`]).
 #[derive(Debug, Clone, Default)]
 pub struct Schedules {
     built: RefCell<HashMap<(String, NaiveDate), Rc<TrancheSchedule>>>,
+    model: PoolModel,
 }
 
 impl Schedules {
+    /// Empty, for schedules priced in `model`.
+    pub fn with_model(model: PoolModel) -> Schedules {
+        Schedules {
+            built: RefCell::default(),
+            model,
+        }
+    }
+
     /// The schedule of pool `pool` of `market` to `maturity`.
     ///
     /// # Errors
@@ -52,7 +63,7 @@ impl Schedules {
         let p = market.pool(pool).ok_or_else(|| {
             Error::msg(ErrorKind::InvalidInput, format!("unknown pool \"{pool}\""))
         })?;
-        let s = Rc::new(TrancheSchedule::for_pool(p, maturity)?);
+        let s = Rc::new(TrancheSchedule::for_pool_with(p, maturity, self.model)?);
         self.built.borrow_mut().insert(key, Rc::clone(&s));
         Ok(s)
     }
@@ -129,6 +140,9 @@ pub struct RiskContext<'a> {
     mapping: Mapping,
     names: usize,
     base: Schedules,
+    /// Schedules of the pool left after one default in a finite pool
+    /// (n - 1 names); `None` in the large pool, which uses `base`.
+    after_default: Option<Schedules>,
     correlation: Option<Market>,
     knots: Vec<Option<Market>>,
     pools: Vec<PoolBumps>,
@@ -211,10 +225,32 @@ impl<'a> RiskContext<'a> {
             mapping,
             names: names.max(1),
             base: Schedules::default(),
+            after_default: None,
             correlation,
             knots,
             pools: bumps,
         })
+    }
+
+    /// The same context with every trade priced in `model`: the base and
+    /// bumped markets in it, and after a default a pool of one name fewer
+    /// (`Names(n)` leaves `Names(n - 1)`).
+    pub fn with_model(mut self, model: PoolModel) -> RiskContext<'a> {
+        self.base = Schedules::with_model(model);
+        self.after_default = match model {
+            PoolModel::Names(n) if n > 1 => Some(Schedules::with_model(PoolModel::Names(n - 1))),
+            _ => None,
+        };
+        for b in &mut self.pools {
+            for m in [&mut b.spread, &mut b.recovery]
+                .into_iter()
+                .flatten()
+                .chain(b.pillars.iter_mut().flatten())
+            {
+                m.schedules = Schedules::with_model(model);
+            }
+        }
+        self
     }
 
     /// The schedules of the unbumped market's pools.
@@ -314,9 +350,12 @@ impl<'a> RiskContext<'a> {
             notional: t.notional * left / w,
             ..t.clone()
         };
-        Ok(self
-            .pv_same_pools(&after, Some(self.market))?
-            .map(|p| paid + p - pv))
+        let s = self.after_default.as_ref().unwrap_or(&self.base).get(
+            self.market,
+            &after.pool,
+            after.maturity,
+        )?;
+        Ok(pv_on(&after, self.market, self.mapping, &s)?.map(|p| paid + p - pv))
     }
 
     /// Change under the spread bump of a protection buyer's contract of

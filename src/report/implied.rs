@@ -18,8 +18,14 @@
 //!                                              quote (file unit); null without base correlations
 //!       "expected_loss_pct": 12.3,             expected tranche loss at the protection end off
 //!                                              the base curve, % of tranche notional; null without
-//!       "flags": ["two_compound_roots"]
-//!   } ] }
+//!       "flags": ["two_compound_roots"],
+//!       "large_pool": {                        only with --names N --compare-pool: the same
+//!           "compound_correlation": [0.11],    quote solved in the large pool (fractions;
+//!           "base_correlation": 0.21 }         base null when none)
+//!   } ],
+//!   "model": "names_125" }                 only with --names: the pool of n names every
+//!                                          correlation above was solved in (absent: the
+//!                                          large pool, the default)
 //! ```
 //!
 //! # Flags
@@ -42,14 +48,15 @@
 //! below the top, no base correlation.
 
 use super::curve::{quote_label, CurvePillar};
-use super::price::bounds_label;
+use super::price::{bounds_label, model_field, model_title};
 use super::{pools_for_all_dates, QuotedTranche};
 use crate::curve::MarketOptions;
 use crate::error::Result;
 use crate::flags::Flag;
+use crate::loss::PoolModel;
 use crate::market::Snapshot;
 use crate::output::{csv_num, fixed, fixed_or, pct, sci, wrap, Report, Table};
-use crate::solve::chain::{implied_date, BaseOutcome, DateImplied, TrancheImplied};
+use crate::solve::chain::{implied_date_with, BaseOutcome, DateImplied, TrancheImplied};
 use crate::solve::compound::{RHO_MAX, RHO_MIN};
 use serde::Serialize;
 
@@ -77,6 +84,18 @@ pub struct ImpliedTranche {
     /// Whether the quote has a solution missing (not printed).
     #[serde(skip)]
     pub unsolved: bool,
+    /// The same quote solved in the large pool (with `--compare-pool`).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub large_pool: Option<LargePoolSide>,
+}
+
+/// A quote's correlations in the large pool, beside a finite pool's.
+#[derive(Debug, Clone, Serialize, PartialEq)]
+pub struct LargePoolSide {
+    /// Every compound correlation, ascending.
+    pub compound_correlation: Vec<f64>,
+    /// Base correlation at the detachment.
+    pub base_correlation: Option<f64>,
 }
 
 impl ImpliedTranche {
@@ -132,6 +151,7 @@ impl ImpliedTranche {
             expected_loss_pct: t.repriced.map(|r| r.expected_loss * 100.0),
             flags: t.flags.clone(),
             unsolved: t.unsolved(),
+            large_pool: None,
         }
     }
 }
@@ -147,6 +167,9 @@ pub struct ImpliedDate {
     pub index: Vec<CurvePillar>,
     /// Tranches by maturity then attachment.
     pub tranches: Vec<ImpliedTranche>,
+    /// `names_N` for a pool of N names; absent for the large pool.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub model: Option<String>,
 }
 
 impl ImpliedDate {
@@ -157,6 +180,7 @@ impl ImpliedDate {
             recovery: d.pool.recovery,
             index: d.pool.pillars.iter().map(CurvePillar::from).collect(),
             tranches: d.tranches().map(ImpliedTranche::from_implied).collect(),
+            model: None,
         }
     }
 }
@@ -185,9 +209,40 @@ impl ImpliedReport {
 /// Curve errors of any date (unfittable index quotes, bad zero pillars).
 /// Tranches with no solution are not errors: they are flagged in the report.
 pub fn build(snapshot: &Snapshot, opts: &MarketOptions) -> Result<ImpliedReport> {
+    build_with(snapshot, opts, PoolModel::LargePool, false)
+}
+
+/// [`build`] with the correlations solved in `model` (the large pool, or a
+/// pool of n names); with `compare`, each tranche also carries the same
+/// quote solved in the large pool.
+///
+/// # Errors
+/// As [`build`]; [`crate::ErrorKind::InvalidInput`] for a pool of 0 names.
+pub fn build_with(
+    snapshot: &Snapshot,
+    opts: &MarketOptions,
+    model: PoolModel,
+    compare: bool,
+) -> Result<ImpliedReport> {
     let mut dates = Vec::with_capacity(snapshot.dates.len());
     for (md, pool) in pools_for_all_dates(snapshot, opts)? {
-        dates.push(ImpliedDate::from_implied(&implied_date(&md, pool)?));
+        let large = if compare {
+            Some(implied_date_with(&md, pool.clone(), PoolModel::LargePool)?)
+        } else {
+            None
+        };
+        let mut date = ImpliedDate::from_implied(&implied_date_with(&md, pool, model)?);
+        date.model = model_field(model);
+        if let Some(large) = large {
+            for (t, l) in date.tranches.iter_mut().zip(large.tranches()) {
+                let l = ImpliedTranche::from_implied(l);
+                t.large_pool = Some(LargePoolSide {
+                    compound_correlation: l.compound_correlation,
+                    base_correlation: l.base_correlation,
+                });
+            }
+        }
+        dates.push(date);
     }
     Ok(ImpliedReport { dates })
 }
@@ -223,26 +278,39 @@ impl Report for ImpliedReport {
                     .take_while(|t| t.tranche.maturity == m)
                     .collect();
                 i += group.len();
-                let mut t = Table::new(&[
-                    "tranche",
-                    "quote",
-                    "compound%",
-                    "base%",
-                    "EL%",
-                    "reprice",
-                    "flags",
-                ])
-                .with_title(format!("{}  tranches maturing {m}", d.date));
+                let compare = group.iter().any(|r| r.large_pool.is_some());
+                let mut headers = vec!["tranche", "quote", "compound%", "base%"];
+                if compare {
+                    headers.extend(["large-pool compound%", "large-pool base%"]);
+                }
+                headers.extend(["EL%", "reprice", "flags"]);
+                let mut t = Table::new(&headers).with_title(format!(
+                    "{}  tranches maturing {m}{}",
+                    d.date,
+                    model_title(&d.model)
+                ));
                 for r in group {
-                    t.push(vec![
+                    let mut row = vec![
                         bounds_label(r.tranche.attach_pct, r.tranche.detach_pct),
                         quote_label(r.tranche.quote_kind, r.tranche.quote, r.tranche.coupon_bp),
                         pct_list(&r.compound_correlation),
                         fixed_or(r.base_correlation.map(|b| b * 100.0), 2, "-"),
+                    ];
+                    if compare {
+                        let l = r.large_pool.as_ref();
+                        row.push(l.map_or("-".to_string(), |l| pct_list(&l.compound_correlation)));
+                        row.push(fixed_or(
+                            l.and_then(|l| l.base_correlation).map(|b| b * 100.0),
+                            2,
+                            "-",
+                        ));
+                    }
+                    row.extend([
                         fixed_or(r.expected_loss_pct, 2, "-"),
                         r.base_reprice_error.map_or("-".to_string(), |e| sci(e, 0)),
                         crate::flags::join(&r.flags, true),
                     ]);
+                    t.push(row);
                     if r.compound_correlation.is_empty() {
                         let span = r.compound_range.map_or(
                             "the model has no quote".to_string(),
@@ -287,6 +355,22 @@ impl Report for ImpliedReport {
             "flags",
             "base_note",
         ]);
+        let with_model = self.dates.iter().any(|d| d.model.is_some());
+        let compare = self
+            .dates
+            .iter()
+            .flat_map(|d| &d.tranches)
+            .any(|t| t.large_pool.is_some());
+        if with_model {
+            headers.push("model");
+        }
+        if compare {
+            headers.extend([
+                "large_pool_compound_correlation_1",
+                "large_pool_compound_correlation_2",
+                "large_pool_base_correlation",
+            ]);
+        }
         let mut t = Table::new(&headers);
         for d in &self.dates {
             for r in &d.tranches {
@@ -304,6 +388,17 @@ impl Report for ImpliedReport {
                     crate::flags::join(&r.flags, false),
                     r.base_note.clone().unwrap_or_default(),
                 ]);
+                if with_model {
+                    row.push(d.model.clone().unwrap_or_default());
+                }
+                if compare {
+                    let l = r.large_pool.as_ref();
+                    row.extend([
+                        csv_num(l.and_then(|l| l.compound_correlation.first().copied())),
+                        csv_num(l.and_then(|l| l.compound_correlation.get(1).copied())),
+                        csv_num(l.and_then(|l| l.base_correlation)),
+                    ]);
+                }
                 t.push(row);
             }
         }

@@ -14,12 +14,15 @@
 //!       "protection_leg": 0.38,      per unit tranche notional
 //!       "premium_annuity": 4.1,      per unit tranche notional and unit running spread (years)
 //!       "value": 0.0012              value to the protection buyer at the quote, per unit notional
-//!   } ] }
+//!   } ],
+//!   "model": "names_125" }           only with --names: the pool of n names the tranches were
+//!                                    priced in (absent: the large pool, the default)
 //! ```
 
 use super::{pools_for_all_dates, QuotedTranche};
 use crate::curve::MarketOptions;
 use crate::error::{Error, ErrorKind, Result};
+use crate::loss::PoolModel;
 use crate::market::{Snapshot, TrancheQuote};
 use crate::output::{csv_num, fixed, fixed_or, pct, Report, Table};
 use crate::tranche::{Tranche, TrancheSchedule, TrancheValuer};
@@ -56,6 +59,9 @@ pub struct PriceDate {
     pub correlation: f64,
     /// Tranches by maturity then attachment.
     pub tranches: Vec<PricedTranche>,
+    /// `names_N` for a pool of N names; absent for the large pool.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub model: Option<String>,
 }
 
 /// The whole `price` report.
@@ -93,6 +99,19 @@ pub fn price_tranche(
 /// # Errors
 /// [`ErrorKind::Usage`] for rho outside (0, 1); curve errors of any date.
 pub fn build(snapshot: &Snapshot, opts: &MarketOptions, rho: f64) -> Result<PriceReport> {
+    build_with(snapshot, opts, rho, PoolModel::LargePool)
+}
+
+/// [`build`] in a pool model: the large pool, or a pool of n names.
+///
+/// # Errors
+/// As [`build`]; [`ErrorKind::InvalidInput`] for a pool of 0 names.
+pub fn build_with(
+    snapshot: &Snapshot,
+    opts: &MarketOptions,
+    rho: f64,
+    model: PoolModel,
+) -> Result<PriceReport> {
     if !(rho > 0.0 && rho < 1.0) {
         return Err(Error::msg(
             ErrorKind::Usage,
@@ -105,7 +124,7 @@ pub fn build(snapshot: &Snapshot, opts: &MarketOptions, rho: f64) -> Result<Pric
         let mut schedule: Option<TrancheSchedule> = None;
         for t in &md.tranches {
             if schedule.as_ref().is_none_or(|s| s.maturity() != t.maturity) {
-                schedule = Some(TrancheSchedule::for_pool(&c, t.maturity)?);
+                schedule = Some(TrancheSchedule::for_pool_with(&c, t.maturity, model)?);
             }
             if let Some(s) = schedule.as_ref() {
                 tranches.push(price_tranche(s, t, rho)?);
@@ -116,9 +135,27 @@ pub fn build(snapshot: &Snapshot, opts: &MarketOptions, rho: f64) -> Result<Pric
             recovery: c.recovery,
             correlation: rho,
             tranches,
+            model: model_field(model),
         });
     }
     Ok(PriceReport { dates })
+}
+
+/// The `model` field of a report: `None` for the large pool (the default,
+/// whose output is unchanged), `names_N` otherwise.
+pub(crate) fn model_field(model: PoolModel) -> Option<String> {
+    match model {
+        PoolModel::LargePool => None,
+        PoolModel::Names(_) => Some(model.name()),
+    }
+}
+
+/// `  125 names` for a table title (empty for the large pool).
+pub(crate) fn model_title(model: &Option<String>) -> String {
+    model
+        .as_deref()
+        .and_then(|m| m.strip_prefix("names_"))
+        .map_or(String::new(), |n| format!("  pool of {n} names"))
 }
 
 /// `0-3` for the table.
@@ -145,10 +182,11 @@ impl Report for PriceReport {
                     "value",
                 ])
                 .with_title(format!(
-                    "{}  recovery {}%  correlation {}%",
+                    "{}  recovery {}%  correlation {}%{}",
                     d.date,
                     fixed(d.recovery * 100.0, 1),
-                    fixed(d.correlation * 100.0, 2)
+                    fixed(d.correlation * 100.0, 2),
+                    model_title(&d.model)
                 ));
                 for p in &d.tranches {
                     t.push(vec![
@@ -181,6 +219,10 @@ impl Report for PriceReport {
             "premium_annuity",
             "value",
         ]);
+        let with_model = self.dates.iter().any(|d| d.model.is_some());
+        if with_model {
+            headers.push("model");
+        }
         let mut t = Table::new(&headers);
         for d in &self.dates {
             for p in &d.tranches {
@@ -198,6 +240,9 @@ impl Report for PriceReport {
                     csv_num(Some(p.premium_annuity)),
                     csv_num(Some(p.value)),
                 ]);
+                if with_model {
+                    row.push(d.model.clone().unwrap_or_default());
+                }
                 t.push(row);
             }
         }

@@ -14,17 +14,20 @@
 //!       "violations": {"outside_unit", "increasing", "maturity_order"},
 //!       "worst": {"outside_unit": null | {"k_from_pct", "k_to_pct", "tranchelet_loss"},
 //!                 "increasing": null | {"k_from_pct", "k_to_pct", "rise"},
-//!                 "maturity_order": null | {"earlier_maturity", "k_pct", "excess"}} } ] }
+//!                 "maturity_order": null | {"earlier_maturity", "k_pct", "excess"}} } ],
+//!   "model": "names_125" }   only with --names: the knots solved and g computed in a pool
+//!                            of n names (absent: the large pool, the default)
 //! ```
 
 use super::pools_for_all_dates;
 use crate::curve::MarketOptions;
 use crate::error::Result;
+use crate::loss::PoolModel;
 use crate::market::Snapshot;
 use crate::math::interp::Interp;
 use crate::output::{csv_num, fixed, fixed_or, pct, sci, Report, Table};
-use crate::solve::chain::implied_date;
-use crate::surface::diagnostics::{diagnose, MaturityDiagnostics};
+use crate::solve::chain::implied_date_with;
+use crate::surface::diagnostics::{diagnose_with, MaturityDiagnostics};
 use crate::surface::Surface;
 use chrono::NaiveDate;
 use serde::Serialize;
@@ -185,6 +188,9 @@ pub struct SurfaceDate {
     pub recovery: f64,
     /// Maturities with knots, increasing.
     pub maturities: Vec<SurfaceMaturity>,
+    /// `names_N` for a pool of N names; absent for the large pool.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub model: Option<String>,
 }
 
 /// The whole `surface` report.
@@ -204,7 +210,20 @@ pub fn surface_of_date(
     pool: crate::curve::Pool,
     interp: Interp,
 ) -> Result<(Surface, crate::curve::Pool)> {
-    let implied = implied_date(md, pool)?;
+    surface_of_date_with(md, pool, interp, PoolModel::LargePool)
+}
+
+/// [`surface_of_date`] with the knots solved in `model`.
+///
+/// # Errors
+/// As [`surface_of_date`].
+pub fn surface_of_date_with(
+    md: &crate::market::MarketDate,
+    pool: crate::curve::Pool,
+    interp: Interp,
+    model: PoolModel,
+) -> Result<(Surface, crate::curve::Pool)> {
+    let implied = implied_date_with(md, pool, model)?;
     let surface = Surface::from_implied(&implied, interp)?;
     Ok((surface, implied.pool))
 }
@@ -221,18 +240,35 @@ pub fn build(
     step: f64,
     only: Option<NaiveDate>,
 ) -> Result<SurfaceReport> {
+    build_with(snapshot, opts, interp, step, only, PoolModel::LargePool)
+}
+
+/// [`build`] in a pool model: knots and base expected loss in the large
+/// pool, or in a pool of n names.
+///
+/// # Errors
+/// As [`build`].
+pub fn build_with(
+    snapshot: &Snapshot,
+    opts: &MarketOptions,
+    interp: Interp,
+    step: f64,
+    only: Option<NaiveDate>,
+    model: PoolModel,
+) -> Result<SurfaceReport> {
     let n = crate::surface::diagnostics::grid_intervals(step)?;
     let snapshot = super::select_date(snapshot, only)?;
     let mut dates = Vec::new();
     for (md, pool) in pools_for_all_dates(&snapshot, opts)? {
-        let (surface, pool) = surface_of_date(&md, pool, interp)?;
-        let diags = diagnose(&surface, &pool, n)?;
+        let (surface, pool) = surface_of_date_with(&md, pool, interp, model)?;
+        let diags = diagnose_with(&surface, &pool, n, model)?;
         dates.push(SurfaceDate {
             date: md.date.to_string(),
             interp: interp.name(),
             step_pct: step * 100.0,
             recovery: pool.recovery,
             maturities: diags.iter().map(SurfaceMaturity::from).collect(),
+            model: super::price::model_field(model),
         });
     }
     Ok(SurfaceReport { dates })
@@ -244,8 +280,10 @@ impl Report for SurfaceReport {
         for d in &self.dates {
             if d.maturities.is_empty() {
                 let mut t = Table::new(&["maturity"]).with_title(format!(
-                    "{}  surface ({}): no base correlation on this date",
-                    d.date, d.interp
+                    "{}  surface ({}): no base correlation on this date{}",
+                    d.date,
+                    d.interp,
+                    super::price::model_title(&d.model)
                 ));
                 t.notes
                     .push("no maturity has a knot: nothing can be priced off the skew".to_string());
@@ -254,12 +292,13 @@ impl Report for SurfaceReport {
             for m in &d.maturities {
                 let mut t = Table::new(&["K%", "base%", "base EL%", "tranchelet%", "check"])
                     .with_title(format!(
-                        "{}  surface maturing {} ({}, step {}%, PD {}%)",
+                        "{}  surface maturing {} ({}, step {}%, PD {}%){}",
                         d.date,
                         m.maturity,
                         d.interp,
                         d.step_pct,
-                        fixed(m.protection_end_pd * 100.0, 3)
+                        fixed(m.protection_end_pd * 100.0, 3),
+                        super::price::model_title(&d.model)
                     ));
                 let knots: Vec<String> = m
                     .knots
@@ -325,7 +364,7 @@ impl Report for SurfaceReport {
     }
 
     fn csv(&self) -> Table {
-        let mut t = Table::new(&[
+        let mut headers = vec![
             "date",
             "interp",
             "maturity",
@@ -337,7 +376,12 @@ impl Report for SurfaceReport {
             "tranchelet_loss",
             "outside_unit",
             "increasing",
-        ]);
+        ];
+        let with_model = self.dates.iter().any(|d| d.model.is_some());
+        if with_model {
+            headers.push("model");
+        }
+        let mut t = Table::new(&headers);
         for d in &self.dates {
             for m in &d.maturities {
                 for (j, g) in m.grid.iter().enumerate() {
@@ -361,6 +405,11 @@ impl Report for SurfaceReport {
                         flag(e.is_some_and(|e| !(-1e-12..=1.0 + 1e-12).contains(&e))),
                         flag(matches!((e, next), (Some(a), Some(b)) if b - a > 1e-12)),
                     ]);
+                    if with_model {
+                        if let Some(row) = t.rows.last_mut() {
+                            row.push(d.model.clone().unwrap_or_default());
+                        }
+                    }
                 }
             }
         }

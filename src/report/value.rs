@@ -14,7 +14,9 @@
 //!                                    "correlation_01": [{"maturity", "detach_pct", "value"}]} } ],
 //!   "book": { "trades", "priced", "pv", "spread_01", "correlation_01", "recovery_01",
 //!             "jump_to_default" },
-//!   "bucket_note": (with --buckets) a sentence }
+//!   "bucket_note": (with --buckets) a sentence,
+//!   "model": (with --pool-model names) "names_N": the skew solved and every trade priced
+//!            in a pool of N = --names names; absent for the large pool (the default) }
 //! ```
 //! Money in the trades file's currency with the holder's sign; correlations
 //! and losses as fractions; quotes in bp and percent as the field names say.
@@ -22,12 +24,13 @@
 //! reason in `flags`.
 
 use super::pools_for_all_dates;
-use crate::book::{value_book, BookOptions, Market, Priced, TradeTerms};
+use crate::book::{value_book_with, BookOptions, Market, Priced, TradeTerms};
 use crate::curve::{MarketOptions, Pool};
 use crate::error::{Error, ErrorKind, Result};
 use crate::flags::Flag;
 use crate::input::pools::BespokePool;
 use crate::input::trades::Trade;
+use crate::loss::PoolModel;
 use crate::market::Snapshot;
 use crate::math::interp::Interp;
 use crate::output::{csv_num, fixed, fixed_or, pct, wrap, Report, Table};
@@ -203,6 +206,10 @@ pub struct ValueReport {
     /// What bucketed figures add up to (with `--buckets`).
     #[serde(skip_serializing_if = "Option::is_none")]
     pub bucket_note: Option<&'static str>,
+    /// `names_N` when the trades are priced in a pool of N names
+    /// (`--pool-model names`); absent for the large pool.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub model: Option<String>,
 }
 
 impl ValueReport {
@@ -232,6 +239,32 @@ pub fn build(
     only: Option<NaiveDate>,
     book: &BookOptions,
 ) -> Result<ValueReport> {
+    build_with(
+        snapshot,
+        opts,
+        book_in,
+        interp,
+        only,
+        book,
+        PoolModel::LargePool,
+    )
+}
+
+/// [`build`] in a pool model: the skew solved and the trades priced in
+/// the large pool, or in a pool of n names (jump-to-default then leaves
+/// n - 1 names; bespoke mapping stays a large-pool convention).
+///
+/// # Errors
+/// As [`build`].
+pub fn build_with(
+    snapshot: &Snapshot,
+    opts: &MarketOptions,
+    book_in: &BookInputs,
+    interp: Interp,
+    only: Option<NaiveDate>,
+    book: &BookOptions,
+    model: PoolModel,
+) -> Result<ValueReport> {
     let (trades, pools, pools_path) =
         (&book_in.trades, &book_in.pools, book_in.pools_path.as_str());
     let date = match only {
@@ -247,7 +280,7 @@ pub fn build(
     let Some((md, index)) = pools_for_all_dates(&one, opts)?.into_iter().next() else {
         return Err(Error::msg(ErrorKind::InvalidInput, "no trade date"));
     };
-    let (surface, index) = super::surface::surface_of_date(&md, index, interp)?;
+    let (surface, index) = super::surface::surface_of_date_with(&md, index, interp, model)?;
     let bespoke = pools
         .iter()
         .map(|p| {
@@ -267,7 +300,7 @@ pub fn build(
         bespoke,
     };
     let terms: Vec<TradeTerms> = trades.iter().map(|t| t.terms.clone()).collect();
-    let results = value_book(&terms, &market, book)?;
+    let results = value_book_with(&terms, &market, book, model)?;
     let mut rows = Vec::with_capacity(trades.len());
     let mut total = BookTotal {
         trades: trades.len(),
@@ -365,6 +398,7 @@ pub fn build(
         trades: rows,
         book: total,
         bucket_note: book.buckets.then_some(BUCKET_NOTE),
+        model: super::price::model_field(model),
     })
 }
 
@@ -385,11 +419,12 @@ impl Report for ValueReport {
             "flags",
         ])
         .with_title(format!(
-            "{}  book valued off the skew ({}, mapping {}, recovery {}%)",
+            "{}  book valued off the skew ({}, mapping {}, recovery {}%){}",
             self.date,
             self.interp,
             self.mapping,
-            fixed(self.recovery * 100.0, 1)
+            fixed(self.recovery * 100.0, 1),
+            super::price::model_title(&self.model)
         ));
         let mut risk = Table::new(&[
             "trade", "spread01", "corr01", "recov01", "jump2def", "index01", "delta",

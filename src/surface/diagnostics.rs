@@ -17,7 +17,7 @@ use super::skew::Surface;
 use crate::curve::Pool;
 use crate::dates::Schedule;
 use crate::error::{Error, ErrorKind, Result};
-use crate::loss::{BaseTranche, Correlation, Horizon};
+use crate::loss::{BaseTranche, Correlation, FinitePool, Horizon, PoolModel};
 use crate::solve::chain::Knot;
 use chrono::NaiveDate;
 
@@ -126,6 +126,7 @@ fn grid_losses(
     pool: &Pool,
     maturity: NaiveDate,
     n: usize,
+    finite: Option<&FinitePool>,
 ) -> Result<(f64, Vec<GridPoint>)> {
     let t_end = Schedule::new(pool.date, maturity).protection_end_time();
     let pd = pool.hazard.default_probability(t_end);
@@ -143,10 +144,12 @@ fn grid_losses(
                 .map(|l| l.rho)
                 .ok_or_else(|| Error::msg(ErrorKind::InvalidInput, "surface has no knots"))?;
             let base = BaseTranche::new(pool.recovery, k)?;
-            (
-                Some(rho),
-                base.closed_form(&horizon, &Correlation::new(rho)).loss,
-            )
+            let corr = Correlation::new(rho);
+            let g = match finite {
+                Some(names) => base.finite(&horizon, &corr, names).loss,
+                None => base.closed_form(&horizon, &corr).loss,
+            };
+            (Some(rho), g)
         };
         grid.push(GridPoint {
             k,
@@ -169,9 +172,27 @@ fn grid_losses(
 /// # Errors
 /// Not expected for a surface built from solved knots.
 pub fn diagnose(surface: &Surface, pool: &Pool, n: usize) -> Result<Vec<MaturityDiagnostics>> {
+    diagnose_with(surface, pool, n, PoolModel::LargePool)
+}
+
+/// [`diagnose`] with the base expected loss g in `model` (the large pool,
+/// or a pool of n names, as the surface's knots were solved in).
+///
+/// # Errors
+/// As [`diagnose`]; [`ErrorKind::InvalidInput`] for a pool of 0 names.
+pub fn diagnose_with(
+    surface: &Surface,
+    pool: &Pool,
+    n: usize,
+    model: PoolModel,
+) -> Result<Vec<MaturityDiagnostics>> {
+    let finite = match model {
+        PoolModel::LargePool => None,
+        PoolModel::Names(names) => Some(FinitePool::new(names)?),
+    };
     let mut out: Vec<MaturityDiagnostics> = Vec::with_capacity(surface.maturities.len());
     for m in &surface.maturities {
-        let (pd, grid) = grid_losses(surface, pool, m.maturity, n)?;
+        let (pd, grid) = grid_losses(surface, pool, m.maturity, n, finite.as_ref())?;
         let mut counts = Counts::default();
         let mut worst_outside_unit: Option<OutsideUnit> = None;
         let mut worst_increasing: Option<Increasing> = None;

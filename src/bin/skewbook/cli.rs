@@ -122,6 +122,8 @@ pub struct SurfaceArgs {
     /// Only this trade date of a history (ISO 8601); default every date.
     #[arg(long, value_name = "YYYY-MM-DD")]
     pub date: Option<chrono::NaiveDate>,
+    #[command(flatten)]
+    pub pool: PoolArgs,
 }
 
 /// `skewbook value`.
@@ -144,9 +146,14 @@ pub struct ValueArgs {
     /// Mapping of bespoke detachments to the index skew.
     #[arg(long, value_enum, default_value_t)]
     pub mapping: MappingArg,
-    /// Names in a pool, for jump-to-default (a count).
+    /// Names in a pool, for jump-to-default (a count); with `--pool-model
+    /// names` also the pool the book is priced in.
     #[arg(long, value_name = "N", default_value_t = 125)]
     pub names: usize,
+    /// Price the book in the large pool (default) or in a pool of `--names`
+    /// names (the skew is then solved in that pool too).
+    #[arg(long, value_enum, default_value_t)]
+    pub pool_model: PoolModelArg,
     /// Also bucketed risk: spread per pillar, correlation per knot.
     #[arg(long)]
     pub buckets: bool,
@@ -236,11 +243,49 @@ pub struct CurveArgs {
     pub market: MarketArgs,
 }
 
+/// The pool model: the large pool (default) or a pool of N names.
+#[derive(Debug, Args)]
+pub struct PoolArgs {
+    /// Price in a homogeneous pool of N names (a count, at least 1) instead
+    /// of the large pool: binomial defaults given the factor.
+    #[arg(long, value_name = "N")]
+    pub names: Option<usize>,
+}
+
+impl PoolArgs {
+    /// The library's pool model.
+    ///
+    /// # Errors
+    /// A usage error for 0 names.
+    pub fn model(&self) -> Result<skewbook::loss::PoolModel, skewbook::Error> {
+        match self.names {
+            None => Ok(skewbook::loss::PoolModel::LargePool),
+            Some(0) => Err(skewbook::Error::msg(
+                skewbook::error::ErrorKind::Usage,
+                "--names: expected a count of names of at least 1, found 0",
+            )),
+            Some(n) => Ok(skewbook::loss::PoolModel::Names(n)),
+        }
+    }
+}
+
+/// What `value` prices the book in.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum, Default)]
+pub enum PoolModelArg {
+    /// The large homogeneous pool (the quoting convention).
+    #[default]
+    Large,
+    /// A pool of `--names` names (the skew solved and the trades priced in it).
+    Names,
+}
+
 /// `skewbook price`.
 #[derive(Debug, Args)]
 pub struct PriceArgs {
     #[command(flatten)]
     pub market: MarketArgs,
+    #[command(flatten)]
+    pub pool: PoolArgs,
     /// Flat correlation in percent, in (0, 100) (30 means 30%, the fraction 0.3). A value below 1
     /// draws a warning.
     #[arg(long, value_name = "PCT", allow_negative_numbers = true)]
@@ -252,6 +297,12 @@ pub struct PriceArgs {
 pub struct ImpliedArgs {
     #[command(flatten)]
     pub market: MarketArgs,
+    #[command(flatten)]
+    pub pool: PoolArgs,
+    /// With `--names`: also solve every quote in the large pool and print
+    /// both pools' correlations side by side.
+    #[arg(long, requires = "names")]
+    pub compare_pool: bool,
 }
 
 /// `skewbook loss`.

@@ -9,7 +9,8 @@ use std::io::Write;
 pub fn run(args: PriceArgs, out: &mut dyn Write) -> Result<Outcome, Failure> {
     let rho = crate::units::CORRELATION.read(args.correlation)?;
     let (snapshot, opts) = crate::curve::load(&args.market)?;
-    let report = skewbook::report::price::build(&snapshot, &opts, rho)?;
+    let model = args.pool.model()?;
+    let report = skewbook::report::price::build_with(&snapshot, &opts, rho, model)?;
     write_report(out, &report, args.market.format.into())?;
     Ok(Outcome::Clean)
 }

@@ -8,12 +8,14 @@ use std::io::Write;
 /// Runs the command: violations are results (exit 0), not errors.
 pub fn run(args: SurfaceArgs, out: &mut dyn Write) -> Result<Outcome, Failure> {
     let (snapshot, opts) = crate::curve::load(&args.market)?;
-    let report = skewbook::report::surface::build(
+    let model = args.pool.model()?;
+    let report = skewbook::report::surface::build_with(
         &snapshot,
         &opts,
         args.interp.into(),
         crate::units::to_fraction(args.step_pct),
         args.date,
+        model,
     )?;
     write_report(out, &report, args.market.format.into())?;
     Ok(Outcome::Clean)

@@ -8,7 +8,7 @@ use skewbook::input::pools::{self, read_pools};
 use skewbook::input::snapshot::read_snapshot;
 use skewbook::input::trades::{self, read_trades};
 use skewbook::output::write_report;
-use skewbook::report::value::{build, BookInputs, BookTrade};
+use skewbook::report::value::{build_with, BookInputs, BookTrade};
 use std::io::Write;
 
 /// Runs the command: exit status 1 when some trade is not priced.
@@ -65,13 +65,18 @@ pub fn run(args: ValueArgs, out: &mut dyn Write) -> Result<Outcome, Failure> {
         risk: true,
         buckets: args.buckets,
     };
-    let report = build(
+    let model = match args.pool_model {
+        crate::cli::PoolModelArg::Large => skewbook::loss::PoolModel::LargePool,
+        crate::cli::PoolModelArg::Names => skewbook::loss::PoolModel::Names(args.names),
+    };
+    let report = build_with(
         &snapshot,
         &opts,
         &inputs,
         args.interp.into(),
         Some(date),
         &options,
+        model,
     )?;
     write_report(out, &report, args.format.into())?;
     Ok(if report.any_unpriced() {
