@@ -44,6 +44,22 @@ fn pricing(c: &mut Criterion) {
             legs
         })
     });
+    // The same tranche in a pool of 125 names (binomial given the factor,
+    // composite Gauss-Legendre over it): the goal is within 5x of the
+    // large pool's `tranche/price/mezzanine_5y`.
+    let names = schedule
+        .clone()
+        .with_model(skewbook::loss::PoolModel::Names(125))
+        .expect("model");
+    c.bench_function("tranche/price/mezzanine_5y_125_names", |b| {
+        let tranche = Tranche::new(mezz.attach, mezz.detach).expect("bounds");
+        let val = TrancheValuer::new(&names, tranche, mezz.quote).expect("valuer");
+        b.iter(|| {
+            let legs = val.legs_flat(black_box(0.3));
+            assert!(legs.annuity > 0.0);
+            legs
+        })
+    });
     c.bench_function("solve/compound/mezzanine_5y", |b| {
         let val = v(mezz);
         b.iter(|| {
