@@ -441,3 +441,143 @@ fn the_472_bp_quote_has_a_finite_pool_root_and_no_large_pool_root() {
     assert_eq!(roots.len(), 2, "roots {roots:?}");
     assert!(roots[0] > 0.1 && roots[1] < 0.3, "roots {roots:?}");
 }
+
+/// The command line with `--names`: the model named in the output, every
+/// base correlation solved in the 125-name pool repricing its quote in that
+/// pool, `--compare-pool` giving the large pool's own `implied` figures,
+/// and usage errors (exit 2) for 0 names or `--compare-pool` alone.
+mod command_line {
+    use crate::common::skewbook;
+
+    const HGX: &str = "market-samples/hgx-2026-06-18.csv";
+
+    fn json(args: &[&str]) -> (i32, serde_json::Value) {
+        let (code, out, err) = skewbook(args);
+        assert!(code == 0 || code == 1, "{args:?}: {err}");
+        (code, serde_json::from_str(&out).expect("json"))
+    }
+
+    #[test]
+    fn implied_in_125_names_reprices_and_compares_with_the_large_pool() {
+        let (_, large) = json(&["implied", HGX, "--format", "json"]);
+        let (_, names) = json(&[
+            "implied",
+            HGX,
+            "--names",
+            "125",
+            "--compare-pool",
+            "--format",
+            "json",
+        ]);
+        assert!(large[0].get("model").is_none());
+        assert_eq!(names[0]["model"], "names_125");
+        let (l, n) = (
+            large[0]["tranches"].as_array().expect("tranches"),
+            names[0]["tranches"].as_array().expect("tranches"),
+        );
+        assert_eq!(l.len(), n.len());
+        let mut solved = 0;
+        for (l, n) in l.iter().zip(n) {
+            // the large-pool side is the plain large-pool run
+            assert_eq!(n["large_pool"]["base_correlation"], l["base_correlation"]);
+            assert_eq!(
+                n["large_pool"]["compound_correlation"],
+                l["compound_correlation"]
+            );
+            if let (Some(rho), Some(err)) = (
+                n["base_correlation"].as_f64(),
+                n["base_reprice_error"].as_f64(),
+            ) {
+                solved += 1;
+                assert!(err.abs() < 1e-8, "{n}");
+                let lp = l["base_correlation"].as_f64().expect("large-pool base");
+                assert!(
+                    (rho - lp).abs() > 1e-4,
+                    "the pools should differ: {rho} {lp}"
+                );
+            }
+        }
+        assert!(solved >= 3);
+        let (code, table, _) = skewbook(&["implied", HGX, "--names", "125", "--compare-pool"]);
+        assert!(code == 0 || code == 1);
+        assert!(table.contains("pool of 125 names") && table.contains("large-pool base%"));
+    }
+
+    #[test]
+    fn price_surface_and_value_say_which_pool() {
+        let (_, p) = json(&[
+            "price",
+            HGX,
+            "--correlation",
+            "30",
+            "--names",
+            "125",
+            "--format",
+            "json",
+        ]);
+        assert_eq!(p[0]["model"], "names_125");
+        let (_, p0) = json(&["price", HGX, "--correlation", "30", "--format", "json"]);
+        assert!(p0[0].get("model").is_none());
+        // the whole pool [0, 100%] does not depend on the model
+        let spread =
+            |v: &serde_json::Value, i: usize| v[0]["tranches"][i]["model_spread_bp"].as_f64();
+        assert_ne!(spread(&p, 0), spread(&p0, 0));
+        let (_, s) = json(&[
+            "surface",
+            "market-samples/kcx-2026-06-18.csv",
+            "--names",
+            "125",
+            "--format",
+            "json",
+        ]);
+        assert_eq!(s[0]["model"], "names_125");
+        let (csv_code, csv, _) = skewbook(&[
+            "surface",
+            "market-samples/kcx-2026-06-18.csv",
+            "--names",
+            "125",
+            "--format",
+            "csv",
+        ]);
+        assert_eq!(csv_code, 0);
+        assert!(csv.lines().next().expect("header").ends_with(",model"));
+        let value = |extra: &[&str]| {
+            let mut args = vec![
+                "value",
+                "market-samples/kcx-trades.csv",
+                "--skew",
+                "market-samples/kcx-2026-06-18.csv",
+                "--pools",
+                "market-samples/kcx-pools.csv",
+                "--format",
+                "json",
+            ];
+            args.extend(extra);
+            json(&args).1
+        };
+        let (large, names_only, finite) = (
+            value(&[]),
+            value(&["--names", "100"]),
+            value(&["--names", "100", "--pool-model", "names"]),
+        );
+        assert!(large.get("model").is_none() && names_only.get("model").is_none());
+        assert_eq!(finite["model"], "names_100");
+        // --names alone moves only jump-to-default; --pool-model names moves the values
+        let pv = |v: &serde_json::Value| v["trades"][0]["pv"].as_f64();
+        assert_eq!(pv(&large), pv(&names_only));
+        assert_ne!(pv(&large), pv(&finite));
+    }
+
+    #[test]
+    fn usage_errors() {
+        for args in [
+            vec!["implied", HGX, "--compare-pool"],
+            vec!["price", HGX, "--correlation", "30", "--names", "0"],
+            vec!["implied", HGX, "--names", "-3"],
+        ] {
+            let (code, out, err) = skewbook(&args);
+            assert_eq!(code, 2, "{args:?}: {err}");
+            assert!(out.is_empty() && err.contains("names"), "{err}");
+        }
+    }
+}

@@ -388,7 +388,7 @@ impl Report for SurfaceReport {
                     let e = g.tranchelet_loss;
                     let next = m.grid.get(j + 1).and_then(|n| n.tranchelet_loss);
                     let flag = |b: bool| if b { "1" } else { "0" }.to_string();
-                    t.push(vec![
+                    let mut row = vec![
                         d.date.clone(),
                         d.interp.to_string(),
                         m.maturity.clone(),
@@ -404,12 +404,11 @@ impl Report for SurfaceReport {
                         csv_num(e),
                         flag(e.is_some_and(|e| !(-1e-12..=1.0 + 1e-12).contains(&e))),
                         flag(matches!((e, next), (Some(a), Some(b)) if b - a > 1e-12)),
-                    ]);
+                    ];
                     if with_model {
-                        if let Some(row) = t.rows.last_mut() {
-                            row.push(d.model.clone().unwrap_or_default());
-                        }
+                        row.push(d.model.clone().unwrap_or_default());
                     }
+                    t.push(row);
                 }
             }
         }

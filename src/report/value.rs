@@ -526,7 +526,7 @@ impl Report for ValueReport {
     }
 
     fn csv(&self) -> Table {
-        let mut t = Table::new(&[
+        let mut headers = vec![
             "date",
             "interp",
             "mapping",
@@ -553,9 +553,13 @@ impl Report for ValueReport {
             "index_01",
             "delta",
             "flags",
-        ]);
+        ];
+        if self.model.is_some() {
+            headers.push("model");
+        }
+        let mut t = Table::new(&headers);
         for r in &self.trades {
-            t.push(vec![
+            let mut row = vec![
                 self.date.clone(),
                 self.interp.to_string(),
                 self.mapping.to_string(),
@@ -582,7 +586,11 @@ impl Report for ValueReport {
                 csv_num(r.index_01),
                 csv_num(r.delta),
                 crate::flags::join(&r.flags, false),
-            ]);
+            ];
+            if let Some(m) = &self.model {
+                row.push(m.clone());
+            }
+            t.push(row);
         }
         t
     }

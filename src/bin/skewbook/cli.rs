@@ -248,7 +248,7 @@ pub struct CurveArgs {
 pub struct PoolArgs {
     /// Price in a homogeneous pool of N names (a count, at least 1) instead
     /// of the large pool: binomial defaults given the factor.
-    #[arg(long, value_name = "N")]
+    #[arg(long, value_name = "N", allow_negative_numbers = true)]
     pub names: Option<usize>,
 }
 
