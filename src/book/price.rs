@@ -199,35 +199,7 @@ fn evaluate(
     };
     let running = legs.protection - t.coupon * legs.annuity;
     let pv = t.sign * t.notional * running;
-    let mut flags = Vec::new();
-    if !detail {
-        return Ok(Priced::Valued(Valuation {
-            rho_attach: a.rho,
-            rho_detach: d.rho,
-            index_equivalent_attach: a.k_index,
-            index_equivalent_detach: d.k_index,
-            protection: legs.protection,
-            annuity: legs.annuity,
-            par_spread: None,
-            upfront: 0.0,
-            expected_loss: legs.expected_loss,
-            pv,
-            flags,
-        }));
-    }
-    if a.extrapolated_detachment || d.extrapolated_detachment {
-        flags.push(Flag::ExtrapolatedDetachment);
-    }
-    if a.extrapolated_maturity || d.extrapolated_maturity || outside_maturities(market, t) {
-        flags.push(Flag::ExtrapolatedMaturity);
-    }
-    if losses.iter().any(|&x| x < -NEGATIVE_LOSS_TOLERANCE) {
-        flags.push(Flag::NegativeExpectedLoss);
-    }
-    if a.several || d.several {
-        flags.push(Flag::SeveralMappings);
-    }
-    Ok(Priced::Valued(Valuation {
+    let mut valuation = Valuation {
         rho_attach: a.rho,
         rho_detach: d.rho,
         index_equivalent_attach: a.k_index,
@@ -238,8 +210,24 @@ fn evaluate(
         upfront: v.model_upfront(&legs),
         expected_loss: legs.expected_loss,
         pv,
-        flags,
-    }))
+        flags: Vec::new(),
+    };
+    if detail {
+        let flags = &mut valuation.flags;
+        if a.extrapolated_detachment || d.extrapolated_detachment {
+            flags.push(Flag::ExtrapolatedDetachment);
+        }
+        if a.extrapolated_maturity || d.extrapolated_maturity || outside_maturities(market, t) {
+            flags.push(Flag::ExtrapolatedMaturity);
+        }
+        if losses.iter().any(|&x| x < -NEGATIVE_LOSS_TOLERANCE) {
+            flags.push(Flag::NegativeExpectedLoss);
+        }
+        if a.several || d.several {
+            flags.push(Flag::SeveralMappings);
+        }
+    }
+    Ok(Priced::Valued(valuation))
 }
 
 /// Whether the trade's maturity lies outside the surface's maturities

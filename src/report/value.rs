@@ -22,6 +22,7 @@
 //! reason in `flags`.
 
 use super::pools_for_all_dates;
+use crate::book::risk::Risk;
 use crate::book::{value_book, BookOptions, Market, Priced, TradeTerms};
 use crate::curve::{MarketOptions, Pool};
 use crate::error::{Error, ErrorKind, Result};
@@ -143,18 +144,9 @@ pub struct TradeRow {
     pub expected_loss: Option<f64>,
     /// s N (P - c Ann), currency.
     pub pv: Option<f64>,
-    /// Currency.
-    pub spread_01: Option<f64>,
-    /// Currency.
-    pub correlation_01: Option<f64>,
-    /// Currency.
-    pub recovery_01: Option<f64>,
-    /// Currency.
-    pub jump_to_default: Option<f64>,
-    /// Currency.
-    pub index_01: Option<f64>,
-    /// Multiple of the trade's notional.
-    pub delta: Option<f64>,
+    /// Risk figures (all null for a trade not priced).
+    #[serde(flatten)]
+    pub risk: Risk,
     /// Flags.
     pub flags: Vec<Flag>,
     /// Bucketed risk (with `--buckets`).
@@ -297,12 +289,7 @@ pub fn build(
             upfront_pct: None,
             expected_loss: None,
             pv: None,
-            spread_01: None,
-            correlation_01: None,
-            recovery_01: None,
-            jump_to_default: None,
-            index_01: None,
-            delta: None,
+            risk: Risk::default(),
             flags: Vec::new(),
             buckets: None,
         };
@@ -321,12 +308,7 @@ pub fn build(
                 row.pv = Some(v.pv);
                 row.flags = v.flags.clone();
                 if let Some(k) = &r.risk {
-                    row.spread_01 = k.spread_01;
-                    row.correlation_01 = k.correlation_01;
-                    row.recovery_01 = k.recovery_01;
-                    row.jump_to_default = k.jump_to_default;
-                    row.index_01 = k.index_01;
-                    row.delta = k.delta;
+                    row.risk = *k;
                     total.spread_01 += k.spread_01.unwrap_or(0.0);
                     total.correlation_01 += k.correlation_01.unwrap_or(0.0);
                     total.recovery_01 += k.recovery_01.unwrap_or(0.0);
@@ -424,12 +406,12 @@ impl Report for ValueReport {
             ]);
             risk.push(vec![
                 t.trade_id.clone(),
-                money(t.spread_01),
-                money(t.correlation_01),
-                money(t.recovery_01),
-                money(t.jump_to_default),
-                money(t.index_01),
-                fixed_or(t.delta, 3, "-"),
+                money(t.risk.spread_01),
+                money(t.risk.correlation_01),
+                money(t.risk.recovery_01),
+                money(t.risk.jump_to_default),
+                money(t.risk.index_01),
+                fixed_or(t.risk.delta, 3, "-"),
             ]);
         }
         prices.notes.push(format!(
@@ -540,12 +522,12 @@ impl Report for ValueReport {
                 csv_num(r.upfront_pct),
                 csv_num(r.expected_loss),
                 csv_num(r.pv),
-                csv_num(r.spread_01),
-                csv_num(r.correlation_01),
-                csv_num(r.recovery_01),
-                csv_num(r.jump_to_default),
-                csv_num(r.index_01),
-                csv_num(r.delta),
+                csv_num(r.risk.spread_01),
+                csv_num(r.risk.correlation_01),
+                csv_num(r.risk.recovery_01),
+                csv_num(r.risk.jump_to_default),
+                csv_num(r.risk.index_01),
+                csv_num(r.risk.delta),
                 crate::flags::join(&r.flags, false),
             ]);
         }
