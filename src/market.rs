@@ -7,6 +7,10 @@
 use crate::error::Problem;
 use chrono::NaiveDate;
 
+/// The pool name that means a snapshot's own index pool (in trades files;
+/// reserved in pools files).
+pub const INDEX_POOL: &str = "index";
+
 /// How a quote is expressed.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub enum Quote {

@@ -11,10 +11,10 @@ use super::legs::{index_legs, index_legs_of_periods, IndexLegs};
 use super::piecewise::PiecewiseConstant;
 use super::DiscountCurve;
 use crate::dates::Schedule;
+use crate::error::significant;
 use crate::error::{Error, ErrorKind, Problem, Result};
 use crate::market::{IndexQuote, Quote};
 use crate::math::root::{brent, Tolerance};
-use crate::output::significant;
 use chrono::NaiveDate;
 
 /// Piecewise-constant pool hazard rate in curve time (Act/365F).

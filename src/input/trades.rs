@@ -65,8 +65,7 @@ const COUPON: usize = 5;
 const NOTIONAL: usize = 6;
 const SIDE: usize = 7;
 
-/// The pool name that means the snapshot's own index pool.
-pub const INDEX_POOL: &str = "index";
+pub use crate::market::INDEX_POOL;
 
 /// The holder's side of a trade.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]

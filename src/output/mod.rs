@@ -32,6 +32,7 @@ mod finite;
 
 pub use finite::{check_finite, NonFinite};
 
+pub use crate::error::significant;
 use serde::Serialize;
 use std::io::{self, Write};
 
@@ -358,47 +359,6 @@ pub fn wrap(text: &str, width: usize, indent: usize) -> Vec<String> {
         lines.push(cur);
     }
     lines
-}
-
-/// `x` with at most `digits` significant digits (at least 1), for messages:
-/// plain notation from 1e-4 to below 1e6, exponent form outside; trailing
-/// zeros dropped.
-///
-/// ```
-/// use skewbook::output::significant;
-/// assert_eq!(significant(55.123456789, 6), "55.1235");
-/// assert_eq!(significant(1e100, 6), "1e100");
-/// assert_eq!(significant(0.000123456789, 6), "0.000123457");
-/// assert_eq!(significant(-2.5e-7, 6), "-2.5e-7");
-/// assert_eq!(significant(40.0, 6), "40");
-/// assert_eq!(significant(999999.7, 6), "1e6");
-/// ```
-pub fn significant(x: f64, digits: usize) -> String {
-    if !x.is_finite() {
-        return format!("{x}");
-    }
-    if x == 0.0 {
-        return "0".to_string();
-    }
-    let digits = digits.max(1);
-    // Round once, in exponent form, so the exponent is that of the rounded value.
-    let e_form = format!("{:.*e}", digits - 1, x);
-    let (mantissa, exponent) = e_form.split_once('e').expect("exponent form");
-    let exponent: i32 = exponent.parse().expect("exponent");
-    let trim = |s: &str| -> String {
-        if s.contains('.') {
-            s.trim_end_matches('0').trim_end_matches('.').to_string()
-        } else {
-            s.to_string()
-        }
-    };
-    if (-4..6).contains(&exponent) {
-        let decimals = (digits as i32 - 1 - exponent).max(0) as usize;
-        let rounded: f64 = e_form.parse().expect("round trip");
-        trim(&format!("{rounded:.decimals$}"))
-    } else {
-        format!("{}e{exponent}", trim(mantissa))
-    }
 }
 
 #[cfg(test)]
