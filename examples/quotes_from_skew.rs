@@ -6,6 +6,7 @@
 //! cargo run --example quotes_from_skew -- lhy       > market-samples/lhy-2026-06-18.csv
 //! cargo run --example quotes_from_skew -- history   > market-samples/hgx-history-2026-06.csv
 //! cargo run --example quotes_from_skew -- kcx       > market-samples/kcx-2026-06-18.csv
+//! cargo run --example quotes_from_skew -- ptx       > market-samples/ptx-2026-06-18.csv
 //! ```
 //!
 //! Each scenario is invented: an index curve (par spreads, or upfronts with
@@ -153,6 +154,48 @@ fn kcx() -> Scenario {
     }
 }
 
+/// Petrel Credit (PTX): a crossover-like pool with two steep skews. The
+/// 5-year one is steep enough that `linear` and `pchip` break the
+/// no-arbitrage laws between and beyond its knots; the 7-year one is so
+/// steep at the top that its knots admit no arbitrage-free base
+/// expected-loss curve: [22%, 60%] carries more expected loss per unit of
+/// width than [12%, 22%] below it.
+fn ptx() -> Scenario {
+    let s = |bp: f64| Quote::Spread(bp / 1e4);
+    let curve = |m: NaiveDate, rho: [f64; 5]| {
+        (
+            m,
+            layers(&[
+                (0.00, 0.03, Some(0.05), rho[0]),
+                (0.03, 0.06, Some(0.05), rho[1]),
+                (0.06, 0.09, Some(0.01), rho[2]),
+                (0.09, 0.12, None, rho[3]),
+                (0.12, 0.22, None, rho[4]),
+                (0.22, 1.00, None, f64::NAN),
+            ]),
+        )
+    };
+    Scenario {
+        trade: d(2026, 6, 18),
+        recovery: 0.40,
+        index: vec![
+            (d(2029, 6, 20), s(118.0)),
+            (d(2031, 6, 20), s(146.0)),
+            (d(2033, 6, 20), s(163.0)),
+        ],
+        zeros: vec![
+            (d(2027, 6, 18), 0.0221),
+            (d(2029, 6, 18), 0.0240),
+            (d(2031, 6, 18), 0.0262),
+            (d(2033, 6, 18), 0.0281),
+        ],
+        tranches: vec![
+            curve(d(2031, 6, 20), [0.12, 0.25, 0.34, 0.42, 0.62]),
+            curve(d(2033, 6, 20), [0.11, 0.26, 0.36, 0.45, 0.72]),
+        ],
+    }
+}
+
 fn round_to(x: f64, decimals: i32) -> f64 {
     let f = 10f64.powi(decimals);
     (x * f).round() / f
@@ -267,6 +310,7 @@ fn main() -> Result<(), skewbook::Error> {
         "hgx" => print_scenario(&hgx(d(2026, 6, 18), 0.0, 0.0), true)?,
         "lhy" => print_scenario(&lhy(), true)?,
         "kcx" => print_scenario(&kcx(), true)?,
+        "ptx" => print_scenario(&ptx(), true)?,
         "history" => {
             // 22 business days of June 2026: spreads and correlations drift.
             let mut date = d(2026, 6, 1);
@@ -285,7 +329,7 @@ fn main() -> Result<(), skewbook::Error> {
         other => {
             return Err(skewbook::Error::msg(
                 skewbook::ErrorKind::Usage,
-                format!("unknown scenario {other:?}: expected hgx, lhy, kcx or history"),
+                format!("unknown scenario {other:?}: expected hgx, lhy, kcx, ptx or history"),
             ))
         }
     }

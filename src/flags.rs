@@ -45,11 +45,14 @@ pub enum Flag {
     NoMapping,
     /// The date has no base correlation at all: the trade is not priced.
     NoSkew,
+    /// `expected-loss`: no correlation in the search range gives the
+    /// interpolated base expected loss at a bound; the nearer end is used.
+    UnattainableExpectedLoss,
 }
 
 impl Flag {
     /// Every flag, in the order the documentation lists them.
-    pub const ALL: [Flag; 17] = [
+    pub const ALL: [Flag; 18] = [
         Flag::NoCompoundRoot,
         Flag::TwoCompoundRoots,
         Flag::CompoundTangent,
@@ -67,6 +70,7 @@ impl Flag {
         Flag::SeveralMappings,
         Flag::NoMapping,
         Flag::NoSkew,
+        Flag::UnattainableExpectedLoss,
     ];
 
     /// The name in JSON and CSV.
@@ -89,6 +93,7 @@ impl Flag {
             Flag::SeveralMappings => "several_mappings",
             Flag::NoMapping => "no_mapping",
             Flag::NoSkew => "no_skew",
+            Flag::UnattainableExpectedLoss => "unattainable_expected_loss",
         }
     }
 
@@ -112,6 +117,7 @@ impl Flag {
             Flag::SeveralMappings => "many maps",
             Flag::NoMapping => "no mapping",
             Flag::NoSkew => "no skew",
+            Flag::UnattainableExpectedLoss => "EL unattain",
         }
     }
 
@@ -165,6 +171,9 @@ impl Flag {
             }
             Flag::NoMapping => "the mapping equation has no solution: the trade is not priced",
             Flag::NoSkew => "the date has no base correlation at all: the trade is not priced",
+            Flag::UnattainableExpectedLoss => {
+                "expected-loss: no correlation in [0.01%, 99.99%] gives the interpolated base expected loss at a bound at the trade's horizon; the nearer end of that range is used"
+            }
         }
     }
 }

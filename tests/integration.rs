@@ -13,6 +13,10 @@ mod cli_errors;
 mod command_line;
 /// Index legs and the hazard bootstrap.
 mod curve;
+/// `--interp expected-loss`: no arbitrage on every sample, quotes repriced,
+/// the implied loss distribution, the repair of knots that are not
+/// admissible, interpolation across maturity, the monotone convex curve.
+mod elinterp;
 /// The command line against the independent Python implementation's fixtures.
 mod independent;
 /// Interpolation of the skew: PCHIP and linear against scipy, isotonic

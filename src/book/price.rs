@@ -47,7 +47,8 @@ pub struct Valuation {
     pub expected_loss: f64,
     /// s N (P - c Ann), currency.
     pub pv: f64,
-    /// `extrapolated_detachment`, `extrapolated_maturity`, `negative_expected_loss`, `several_mappings`.
+    /// `extrapolated_detachment`, `extrapolated_maturity`, `negative_expected_loss`,
+    /// `several_mappings`, `unattainable_expected_loss`.
     pub flags: Vec<Flag>,
 }
 
@@ -82,6 +83,7 @@ struct Bound {
     extrapolated_detachment: bool,
     extrapolated_maturity: bool,
     several: bool,
+    unattainable: bool,
 }
 
 /// Values `t` in `market` under `mapping`.
@@ -154,6 +156,7 @@ fn evaluate(
                 extrapolated_detachment: false,
                 extrapolated_maturity: false,
                 several: false,
+                unattainable: false,
             }));
         }
         let mapped = if t.pool == INDEX_POOL {
@@ -179,6 +182,7 @@ fn evaluate(
             extrapolated_detachment: l.extrapolated_detachment,
             extrapolated_maturity: l.extrapolated_maturity,
             several,
+            unattainable: l.unattainable_loss,
         }))
     };
     let (Some(a), Some(d)) = (bound(t.tranche.attach())?, bound(t.tranche.detach())?) else {
@@ -225,6 +229,9 @@ fn evaluate(
         }
         if a.several || d.several {
             flags.push(Flag::SeveralMappings);
+        }
+        if a.unattainable || d.unattainable {
+            flags.push(Flag::UnattainableExpectedLoss);
         }
     }
     Ok(Priced::Valued(valuation))

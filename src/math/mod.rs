@@ -6,9 +6,13 @@
 //! - [`root`]: the stopping rule ([`root::Tolerance`]) kept apart from the
 //!   solvers (Brent, bracketed Newton), and what a solve returns;
 //! - [`interp`]: knot interpolation (linear, monotone cubic), isotonic
-//!   regression and a shape-preserving concave spline.
+//!   regression and a shape-preserving concave spline;
+//! - [`monotone_convex`]: a rising concave curve whose slope is
+//!   interpolated by the monotone convex method (Hagan and West 2006), for
+//!   base expected loss.
 
 pub mod bvn;
 pub mod interp;
+pub mod monotone_convex;
 pub mod normal;
 pub mod root;

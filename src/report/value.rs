@@ -14,7 +14,10 @@
 //!                                    "correlation_01": [{"maturity", "detach_pct", "value"}]} } ],
 //!   "book": { "trades", "priced", "pv", "spread_01", "correlation_01", "recovery_01",
 //!             "jump_to_default" },
-//!   "bucket_note": (with --buckets) a sentence }
+//!   "bucket_note": (with --buckets) a sentence,
+//!   "surface_notes": (with --interp expected-loss, when some maturity's knots
+//!                     are not admissible) [ sentences naming the knots and
+//!                     the values they were moved to ] }
 //! ```
 //! Money in the trades file's currency with the holder's sign; correlations
 //! and losses as fractions; quotes in bp and percent as the field names say.
@@ -178,7 +181,7 @@ pub struct BookTotal {
 pub struct ValueReport {
     /// Trade date valued.
     pub date: String,
-    /// `linear` or `pchip`.
+    /// `linear`, `pchip` or `expected-loss`.
     pub interp: &'static str,
     /// Mapping method.
     pub mapping: &'static str,
@@ -195,6 +198,10 @@ pub struct ValueReport {
     /// What bucketed figures add up to (with `--buckets`).
     #[serde(skip_serializing_if = "Option::is_none")]
     pub bucket_note: Option<&'static str>,
+    /// `expected-loss`: maturities whose knots were moved to the nearest
+    /// admissible values, and why (absent when there are none).
+    #[serde(skip_serializing_if = "Vec::is_empty")]
+    pub surface_notes: Vec<String>,
 }
 
 impl ValueReport {
@@ -253,6 +260,7 @@ pub fn build(
             .map(|pool| (p.name.clone(), pool))
         })
         .collect::<Result<Vec<_>>>()?;
+    let surface_notes = repair_notes(&surface);
     let market = Market {
         index,
         surface,
@@ -347,7 +355,42 @@ pub fn build(
         trades: rows,
         book: total,
         bucket_note: book.buckets.then_some(BUCKET_NOTE),
+        surface_notes,
     })
+}
+
+/// One sentence per maturity whose knots the `expected-loss` surface
+/// repaired: why, and where the knots went.
+fn repair_notes(surface: &crate::surface::Surface) -> Vec<String> {
+    surface
+        .maturities
+        .iter()
+        .filter_map(|m| {
+            let c = m.loss_curve()?;
+            if c.is_admissible() {
+                return None;
+            }
+            let why: Vec<String> = c.inadmissible.iter().map(|v| v.to_string()).collect();
+            let moved: Vec<String> = c
+                .adjusted
+                .iter()
+                .map(|a| {
+                    format!(
+                        "{}% base correlation {} -> {}",
+                        pct(a.detach),
+                        fixed(a.rho, 4),
+                        fixed(a.adjusted_rho.rho, 4)
+                    )
+                })
+                .collect();
+            Some(format!(
+                "{}: {}; the surface uses the nearest admissible knots ({}), so the quotes there do not reprice",
+                m.maturity,
+                why.join("; "),
+                moved.join(", ")
+            ))
+        })
+        .collect()
 }
 
 impl Report for ValueReport {
@@ -422,6 +465,9 @@ impl Report for ValueReport {
         ));
         if let Some(n) = self.note {
             prices.notes.extend(wrap(n, 79, 0));
+        }
+        for n in &self.surface_notes {
+            prices.notes.extend(wrap(n, 79, 4));
         }
         let mut seen: Vec<Flag> = self.trades.iter().flat_map(|t| t.flags.clone()).collect();
         seen.sort();

@@ -67,6 +67,9 @@ pub enum InterpArg {
     Linear,
     /// Monotone piecewise-cubic Hermite (Fritsch-Carlson), flat outside.
     Pchip,
+    /// Base expected loss by a rising concave spline, correlation read back off it (no arbitrage in detachment).
+    #[value(name = "expected-loss")]
+    ExpectedLoss,
 }
 
 impl From<InterpArg> for skewbook::math::interp::Interp {
@@ -74,6 +77,7 @@ impl From<InterpArg> for skewbook::math::interp::Interp {
         match i {
             InterpArg::Linear => skewbook::math::interp::Interp::Linear,
             InterpArg::Pchip => skewbook::math::interp::Interp::Pchip,
+            InterpArg::ExpectedLoss => skewbook::math::interp::Interp::ExpectedLoss,
         }
     }
 }
