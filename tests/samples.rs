@@ -54,7 +54,14 @@ fn every_command_runs_on_every_sample_in_every_format() {
                 vec!["price", file.as_str(), "--correlation", "30"],
                 vec!["implied", file.as_str()],
                 vec!["surface", file.as_str(), "--step-pct", "1"],
-                vec!["surface", file.as_str(), "--interp", "pchip", "--step-pct", "1"],
+                vec![
+                    "surface",
+                    file.as_str(),
+                    "--interp",
+                    "pchip",
+                    "--step-pct",
+                    "1",
+                ],
             ] {
                 let mut args = cmd.clone();
                 args.extend(["--format", format]);

@@ -6,6 +6,7 @@
 //! quotes are in their file units (bp for spreads, percent for upfronts).
 
 pub mod curve;
+pub mod html;
 pub mod implied;
 pub mod loss;
 pub mod price;

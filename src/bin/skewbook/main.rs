@@ -13,12 +13,14 @@
 //! 141); exiting 0 keeps `set -o pipefail` scripts from failing on a
 //! `head`, as the output the reader wanted was delivered.
 
+mod chart;
 mod cli;
 mod curve;
 mod implied;
 mod loss;
 mod price;
 mod realworld;
+mod report;
 mod surface;
 mod units;
 mod value;
@@ -45,6 +47,8 @@ fn run(cli: Cli, out: &mut dyn Write) -> Result<Outcome, Failure> {
         Command::Realworld(a) => realworld::run(a, out),
         Command::Surface(a) => surface::run(a, out),
         Command::Value(a) => value::run(a, out),
+        Command::Chart(a) => chart::run(a, out),
+        Command::Report(a) => report::run(a, out),
     }
 }
 
