@@ -138,10 +138,7 @@ pub struct Charts {
 }
 
 /// The snapshot's date to draw: `date`, or the last.
-fn pick_date(
-    snapshot: &Snapshot,
-    date: Option<NaiveDate>,
-) -> Result<&crate::market::MarketDate> {
+fn pick_date(snapshot: &Snapshot, date: Option<NaiveDate>) -> Result<&crate::market::MarketDate> {
     let picked = crate::report::select_date(snapshot, date)?;
     let want = picked.dates.last().map(|d| d.date);
     snapshot

@@ -31,7 +31,8 @@
 //! | reprice errors, arbitrage sizes | scientific | 2 after the point (`7.11e-15`) |
 //!
 //! Rows carry ids: `index-MATURITY` for a pillar, `tranche-MATURITY-A-D`
-//! for a tranche (bounds in percent, shortest form).
+//! for a tranche (bounds in percent, shortest form), `estimate-METHOD` for
+//! a real-world estimate; a flag's explanation is `flag-NAME`.
 
 mod writer;
 
@@ -408,7 +409,7 @@ fn realworld_section(h: &mut Html, charts: &Charts) {
         .iter()
         .map(|e| {
             (
-                None,
+                Some(format!("estimate-{}", e.method.name())),
                 vec![
                     Cell::T(e.method.name().to_string()),
                     Cell::N(e.pd.map_or("-".to_string(), |p| pct(p, 4))),
