@@ -372,3 +372,20 @@ fn chart_and_report_options_name_their_units() {
         }
     }
 }
+
+/// Text from the user (here a file name with markup characters) is escaped:
+/// the page still parses and shows the name as it is.
+#[test]
+fn text_from_the_user_is_escaped() {
+    let text =
+        std::fs::read_to_string(format!("{}/{HGX}", env!("CARGO_MANIFEST_DIR"))).expect("hgx");
+    let path = crate::common::write_temp("odd <name> & \"quotes\" 'too'", text);
+    let p = page(&[path.as_str()]);
+    let doc = parse(&p);
+    let shown = doc
+        .descendants()
+        .filter_map(|n| n.text())
+        .any(|t| t.contains(&path));
+    assert!(shown, "the file name is not shown as it is");
+    assert!(!p.contains("<name>"));
+}

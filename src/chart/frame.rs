@@ -381,14 +381,23 @@ pub(crate) fn render(frame: &Frame, items: &[Item], legend: &[LegendEntry]) -> R
                     style,
                     marker_every,
                 } => {
+                    // A point with a gap on both sides has no line: it gets
+                    // its marker, so it is not lost.
+                    let flush = |run: Vec<(i32, i32)>| -> Result<()> {
+                        if let [single] = run[..] {
+                            draw_marker(&root, style.marker, single, 3)
+                        } else {
+                            draw_path(&root, run, style)
+                        }
+                    };
                     let mut run = Vec::new();
                     for p in points {
                         match p {
                             Some((x, y)) => run.push(px(*x, *y)),
-                            None => draw_path(&root, std::mem::take(&mut run), style)?,
+                            None => flush(std::mem::take(&mut run))?,
                         }
                     }
-                    draw_path(&root, run, style)?;
+                    flush(run)?;
                     if *marker_every > 0 {
                         for (i, p) in points.iter().enumerate() {
                             if let (Some((x, y)), true) = (p, i % marker_every == 0) {

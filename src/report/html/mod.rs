@@ -790,7 +790,32 @@ pub fn page(charts: &Charts) -> Result<String> {
     h.close("section");
     h.close("body");
     h.close("html");
-    h.finish()
+    let html = h.finish()?;
+    if let Some(at) = non_finite_shown(&html) {
+        return Err(crate::Error::msg(
+            crate::ErrorKind::InvalidInput,
+            format!(
+                "HTML report: a number that is not finite would be shown near \"{}\" (a bug: please report it with the command and its input)",
+                &html[at.saturating_sub(40)..(at + 10).min(html.len())]
+            ),
+        ));
+    }
+    Ok(html)
+}
+
+/// Where the page shows `NaN` or `inf` as a word of its own (the output
+/// guard's rule for the other printers: never a number that is not finite).
+fn non_finite_shown(html: &str) -> Option<usize> {
+    let bytes = html.as_bytes();
+    let letter = |i: Option<usize>| {
+        i.and_then(|i| bytes.get(i))
+            .is_some_and(|b| b.is_ascii_alphabetic())
+    };
+    ["NaN", "inf"].iter().find_map(|word| {
+        html.match_indices(word)
+            .map(|(i, _)| i)
+            .find(|&i| !letter(i.checked_sub(1)) && !letter(Some(i + word.len())))
+    })
 }
 
 fn capitalised(s: &str) -> String {
@@ -798,5 +823,17 @@ fn capitalised(s: &str) -> String {
     match c.next() {
         Some(f) => f.to_uppercase().chain(c).collect(),
         None => String::new(),
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::non_finite_shown;
+
+    #[test]
+    fn the_guard_finds_nan_and_infinity_but_not_words() {
+        assert_eq!(non_finite_shown("<td>NaN</td>"), Some(4));
+        assert!(non_finite_shown("<td>-inf</td>").is_some());
+        assert!(non_finite_shown("the probit of 0 is infinite; information").is_none());
     }
 }
