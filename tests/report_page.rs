@@ -183,6 +183,50 @@ fn page_carries_every_number_of_the_implied_json() {
             .collect::<Vec<_>>()
             .join(" | ");
         let d = &implied[0];
+        // A field added to the JSON must be added to the page (and here).
+        let keys = |v: &Value| -> Vec<String> {
+            let mut k: Vec<String> = v.as_object().expect("object").keys().cloned().collect();
+            k.sort();
+            k
+        };
+        assert_eq!(keys(d), ["date", "index", "recovery", "tranches"]);
+        for p in d["index"].as_array().expect("index") {
+            assert_eq!(
+                keys(p),
+                [
+                    "annuity",
+                    "coupon_bp",
+                    "default_probability",
+                    "hazard",
+                    "maturity",
+                    "quote",
+                    "quote_kind",
+                    "reprice_error",
+                    "repriced_quote",
+                    "survival"
+                ]
+            );
+        }
+        for t in d["tranches"].as_array().expect("tranches") {
+            assert_eq!(
+                keys(t),
+                [
+                    "attach_pct",
+                    "base_correlation",
+                    "base_note",
+                    "base_reprice_error",
+                    "compound_correlation",
+                    "compound_range",
+                    "coupon_bp",
+                    "detach_pct",
+                    "expected_loss_pct",
+                    "flags",
+                    "maturity",
+                    "quote",
+                    "quote_kind"
+                ]
+            );
+        }
         assert!(all_text.contains(&format!(
             "recovery {}%",
             fixed(f(&d["recovery"]) * 100.0, 2)
