@@ -52,6 +52,7 @@
 #![deny(missing_docs)]
 
 pub mod book;
+pub mod chart;
 pub mod curve;
 pub mod dates;
 pub mod error;

@@ -5,6 +5,9 @@ mod common;
 
 /// Bivariate normal CDF: mpmath fixture and identities.
 mod bvn;
+/// Charts: their data against `implied` and `surface` on random dates, the
+/// drawn SVG against its data, no root, a broken chain through time.
+mod charts;
 /// The binary on malformed snapshots: exit 2, `path:line:col:` on stderr, no panic; `-` is stdin.
 mod cli_errors;
 /// The command line's rules: percent options and their warnings, negative
@@ -29,6 +32,8 @@ mod outputs;
 mod realworld;
 /// Coverage of the estimators' 95 % intervals on simulated histories.
 mod realworld_coverage;
+/// The HTML report: well-formed, self-contained, every number of the JSON.
+mod report_page;
 /// Every bundled sample through every command and format.
 mod samples;
 /// The correlation surface, trades off it, mapping and risk.

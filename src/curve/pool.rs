@@ -3,7 +3,7 @@
 
 use super::{bootstrap, DiscountCurve, HazardCurve, Pillar};
 use crate::error::{Error, ErrorKind, Result};
-use crate::market::{IndexQuote, MarketDate, Quote};
+use crate::market::{IndexQuote, MarketDate, Quote, Snapshot};
 use chrono::NaiveDate;
 
 /// Recovery used when neither the snapshot nor the command line gives one.
@@ -211,5 +211,32 @@ impl Pool {
             self.discount.clone(),
             &self.source,
         )
+    }
+}
+
+/// Builds the index pool (curves) of every date of a snapshot, collecting
+/// every date's error into one [`Error`] so a history shows all its bad
+/// dates at once.
+///
+/// # Errors
+/// The first error's kind, with the problems of every failing date.
+pub fn pools_for_all_dates(
+    snapshot: &Snapshot,
+    opts: &MarketOptions,
+) -> Result<Vec<(MarketDate, Pool)>> {
+    let mut out = Vec::with_capacity(snapshot.dates.len());
+    let mut failure: Option<Error> = None;
+    for md in &snapshot.dates {
+        match Pool::build(md, opts, &snapshot.path) {
+            Ok(c) => out.push((md.clone(), c)),
+            Err(e) => match &mut failure {
+                None => failure = Some(e),
+                Some(f) => f.problems.extend(e.problems),
+            },
+        }
+    }
+    match failure {
+        Some(e) => Err(e),
+        None => Ok(out),
     }
 }

@@ -6,6 +6,7 @@
 //! quotes are in their file units (bp for spreads, percent for upfronts).
 
 pub mod curve;
+pub mod html;
 pub mod implied;
 pub mod loss;
 pub mod price;
@@ -14,79 +15,12 @@ pub mod skew_history;
 pub mod surface;
 pub mod value;
 
-use crate::curve::{MarketOptions, Pool};
-use crate::error::{Error, Result};
-use crate::market::{MarketDate, Snapshot, TrancheQuote};
+use crate::market::TrancheQuote;
 use crate::output::pct;
 use serde::Serialize;
 
-/// Builds the index pool (curves) of every date of a snapshot, collecting
-/// every date's error into one [`Error`] so a history shows all its bad
-/// dates at once.
-///
-/// # Errors
-/// The first error's kind, with the problems of every failing date.
-pub fn pools_for_all_dates(
-    snapshot: &Snapshot,
-    opts: &MarketOptions,
-) -> Result<Vec<(MarketDate, Pool)>> {
-    let mut out = Vec::with_capacity(snapshot.dates.len());
-    let mut failure: Option<Error> = None;
-    for md in &snapshot.dates {
-        match Pool::build(md, opts, &snapshot.path) {
-            Ok(c) => out.push((md.clone(), c)),
-            Err(e) => match &mut failure {
-                None => failure = Some(e),
-                Some(f) => f.problems.extend(e.problems),
-            },
-        }
-    }
-    match failure {
-        Some(e) => Err(e),
-        None => Ok(out),
-    }
-}
-
-/// The snapshot restricted to one trade date, or as it is when `only` is `None`.
-///
-/// # Errors
-/// [`crate::ErrorKind::Usage`] when the date is not in the file.
-pub fn select_date(snapshot: &Snapshot, only: Option<chrono::NaiveDate>) -> Result<Snapshot> {
-    let Some(d) = only else {
-        return Ok(snapshot.clone());
-    };
-    let dates: Vec<MarketDate> = snapshot
-        .dates
-        .iter()
-        .filter(|m| m.date == d)
-        .cloned()
-        .collect();
-    if dates.is_empty() {
-        let have: Vec<String> = snapshot.dates.iter().map(|m| m.date.to_string()).collect();
-        return Err(Error::msg(
-            crate::ErrorKind::Usage,
-            format!(
-                "--date {d}: {} has no quotes on that date (it has {})",
-                snapshot.path,
-                if have.len() > 6 {
-                    format!(
-                        "{} dates, {} to {}",
-                        have.len(),
-                        have[0],
-                        have[have.len() - 1]
-                    )
-                } else {
-                    have.join(", ")
-                }
-            ),
-        ));
-    }
-    Ok(Snapshot {
-        path: snapshot.path.clone(),
-        dates,
-        warnings: snapshot.warnings.clone(),
-    })
-}
+pub use crate::curve::pool::pools_for_all_dates;
+pub use crate::market::select_date;
 
 /// A quoted tranche as every tranche report shows it: which tranche and
 /// its quote, in file units (flattened into each report's tranche object).

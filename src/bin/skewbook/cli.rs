@@ -35,6 +35,12 @@ pub enum Command {
     Surface(SurfaceArgs),
     /// A book of tranche trades priced off one date's skew, with risk.
     Value(ValueArgs),
+    /// Pictures of one date's skew as SVG files: skew per maturity, each
+    /// tranche's quote against correlation, loss exceedance, skew history.
+    Chart(ChartArgs),
+    /// One self-contained HTML page: tables, charts, flags explained,
+    /// assumptions and cautions.
+    Report(ReportArgs),
     /// The skew through time: base and compound correlations per date, and
     /// their change since the previous date.
     SkewHistory(SkewHistoryArgs),
@@ -363,6 +369,96 @@ pub struct RealworldArgs {
     /// Output format.
     #[arg(long, value_enum, default_value_t)]
     pub format: FormatArg,
+}
+
+/// Estimator of the real-world curve.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+#[value(rename_all = "snake_case")]
+pub enum EstimatorArg {
+    /// Maximum likelihood of the binomial mixture (counts).
+    BinomialMl,
+    /// Maximum likelihood on probit-transformed default rates.
+    ProbitMoments,
+    /// Mean and variance of the default rates matched.
+    MomentMatching,
+    /// Mean rate and joint default probability matched (counts).
+    JointDefaultMoments,
+}
+
+impl From<EstimatorArg> for skewbook::realworld::estimators::Method {
+    fn from(e: EstimatorArg) -> Self {
+        use skewbook::realworld::estimators::Method;
+        match e {
+            EstimatorArg::BinomialMl => Method::BinomialMl,
+            EstimatorArg::ProbitMoments => Method::ProbitMoments,
+            EstimatorArg::MomentMatching => Method::MomentMatching,
+            EstimatorArg::JointDefaultMoments => Method::JointDefaultMoments,
+        }
+    }
+}
+
+/// What `chart` and `report` draw from.
+#[derive(Debug, Args)]
+pub struct PictureArgs {
+    /// Snapshot CSV file (`-` reads standard input); its last trade date is drawn.
+    pub file: String,
+    /// A history of snapshots (CSV with many trade dates) for the skew through time.
+    #[arg(long, value_name = "FILE")]
+    pub history: Option<String>,
+    /// The index pool's default history (CSV) for the real-world loss curve.
+    #[arg(long, value_name = "FILE")]
+    pub defaults: Option<String>,
+    /// Trade date of the snapshot to draw (ISO 8601); default its last.
+    #[arg(long, value_name = "YYYY-MM-DD")]
+    pub date: Option<chrono::NaiveDate>,
+    /// Detachments in percent, comma-separated, each in (0, 100) (3,7,10
+    /// means 3%, 7%, 10%), read off each date's skew in the history chart.
+    #[arg(
+        long,
+        value_name = "PCT,PCT",
+        value_delimiter = ',',
+        allow_hyphen_values = true
+    )]
+    pub at: Vec<f64>,
+    /// Interpolation of the skew for --at.
+    #[arg(long, value_enum, default_value_t)]
+    pub interp: InterpArg,
+    /// Loss grid step in percent for the exceedance curves; must divide 100.
+    #[arg(
+        long,
+        value_name = "PCT",
+        default_value_t = 0.5,
+        allow_negative_numbers = true
+    )]
+    pub step_pct: f64,
+    /// Estimator of the real-world curve; default the first that gives PD,
+    /// rho and both 95% intervals of binomial_ml, probit_moments,
+    /// moment_matching, joint_default_moments.
+    #[arg(long, value_enum)]
+    pub estimator: Option<EstimatorArg>,
+    /// `--recovery` and `--rate` for the snapshot and the history.
+    #[command(flatten)]
+    pub curve: CurveChoiceArgs,
+}
+
+/// `skewbook chart`.
+#[derive(Debug, Args)]
+pub struct ChartArgs {
+    #[command(flatten)]
+    pub picture: PictureArgs,
+    /// Directory the SVG files are written to (made if missing).
+    #[arg(long, value_name = "DIR")]
+    pub out: String,
+}
+
+/// `skewbook report`.
+#[derive(Debug, Args)]
+pub struct ReportArgs {
+    #[command(flatten)]
+    pub picture: PictureArgs,
+    /// The HTML file to write (`-` writes to standard output).
+    #[arg(long, value_name = "FILE.html")]
+    pub out: String,
 }
 
 #[cfg(test)]

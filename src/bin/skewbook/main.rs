@@ -13,12 +13,14 @@
 //! 141); exiting 0 keeps `set -o pipefail` scripts from failing on a
 //! `head`, as the output the reader wanted was delivered.
 
+mod chart;
 mod cli;
 mod curve;
 mod implied;
 mod loss;
 mod price;
 mod realworld;
+mod report;
 mod skew_history;
 mod surface;
 mod units;
@@ -47,6 +49,8 @@ fn run(cli: Cli, out: &mut dyn Write) -> Result<Outcome, Failure> {
         Command::Surface(a) => surface::run(a, out),
         Command::Value(a) => value::run(a, out),
         Command::SkewHistory(a) => skew_history::run(a, out),
+        Command::Chart(a) => chart::run(a, out),
+        Command::Report(a) => report::run(a, out),
     }
 }
 
