@@ -159,7 +159,7 @@ impl SkewChart {
             .chain(self.knots.iter().map(|k| k.rho * 100.0));
         let (lo, hi) = padded_range(values, 10.0);
         let mut subtitle = format!(
-            "trade date {}; flat outside the knots ({}% to {}%)",
+            "trade date {}; linear and pchip flat outside the knots ({}% to {}%)",
             self.date,
             tick(self.knots.first().map_or(0.0, |k| k.detach) * 100.0, 4),
             tick(self.knots.last().map_or(0.0, |k| k.detach) * 100.0, 4)
