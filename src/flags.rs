@@ -33,6 +33,12 @@ pub enum Flag {
     FlatInCorrelation,
     /// A solver stopped without converging; the value it would have given is not reported.
     SolverFailed,
+    /// A compound or base correlation lies within 0.5% of a search limit:
+    /// the quote's unit is the likely mistake.
+    NearSearchLimit,
+    /// The maturity's tranches tile 0-100% but their quotes and the index
+    /// quote disagree by more than the tolerance.
+    IndexMismatch,
     /// A bound lies outside the knot range of a maturity used.
     ExtrapolatedDetachment,
     /// The maturity lies outside the surface's maturities.
@@ -49,7 +55,7 @@ pub enum Flag {
 
 impl Flag {
     /// Every flag, in the order the documentation lists them.
-    pub const ALL: [Flag; 17] = [
+    pub const ALL: [Flag; 19] = [
         Flag::NoCompoundRoot,
         Flag::TwoCompoundRoots,
         Flag::CompoundTangent,
@@ -61,6 +67,8 @@ impl Flag {
         Flag::NoCorrelationDependence,
         Flag::FlatInCorrelation,
         Flag::SolverFailed,
+        Flag::NearSearchLimit,
+        Flag::IndexMismatch,
         Flag::ExtrapolatedDetachment,
         Flag::ExtrapolatedMaturity,
         Flag::NegativeExpectedLoss,
@@ -83,6 +91,8 @@ impl Flag {
             Flag::NoCorrelationDependence => "no_correlation_dependence",
             Flag::FlatInCorrelation => "flat_in_correlation",
             Flag::SolverFailed => "solver_failed",
+            Flag::NearSearchLimit => "near_search_limit",
+            Flag::IndexMismatch => "index_mismatch",
             Flag::ExtrapolatedDetachment => "extrapolated_detachment",
             Flag::ExtrapolatedMaturity => "extrapolated_maturity",
             Flag::NegativeExpectedLoss => "negative_expected_loss",
@@ -106,6 +116,8 @@ impl Flag {
             Flag::NoCorrelationDependence => "whole pool",
             Flag::FlatInCorrelation => "flat in rho",
             Flag::SolverFailed => "solver fail",
+            Flag::NearSearchLimit => "check unit",
+            Flag::IndexMismatch => "index gap",
             Flag::ExtrapolatedDetachment => "extrap K",
             Flag::ExtrapolatedMaturity => "extrap T",
             Flag::NegativeExpectedLoss => "neg EL",
@@ -150,6 +162,12 @@ impl Flag {
             }
             Flag::SolverFailed => {
                 "a root finder stopped without converging; no value is reported for it"
+            }
+            Flag::NearSearchLimit => {
+                "a compound or base correlation lies within 0.5% of a search limit (0.01% or 99.99%): check the quote's unit (spread_bp in basis points, upfront_pct in percent); a mezzanine's second compound root near 100% can be genuine"
+            }
+            Flag::IndexMismatch => {
+                "the maturity's tranches tile 0-100% but the protection their quotes imply differs from the index curve's by more than the tolerance (in bp of running spread): check the tranche quotes against the index quote"
             }
             Flag::ExtrapolatedDetachment => {
                 "a bound lies outside the quoted detachments of a maturity used: its correlation is held flat"
