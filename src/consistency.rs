@@ -108,7 +108,7 @@ pub fn index_gap(pool: &Pool, m: &MaturityImplied) -> Result<Option<IndexGap>> {
             tranche.width() * (v.running() * legs.annuity + v.upfront() * schedule.df_settlement());
     }
     let whole = schedule.base_legs(&schedule.base(1.0)?, 0.5);
-    if !(whole.annuity > 1e-14) {
+    if whole.annuity.is_nan() || whole.annuity <= 1e-14 {
         return Ok(None);
     }
     let gap = implied - whole.protection;

@@ -174,6 +174,25 @@ fn trades_pools_and_zero_rates_have_market_domains() {
              1e15, found \"1e300\""
         ),
     );
+    // A name the output would take for a number that is not finite.
+    let named_inf = write_temp(
+        "trade_named_inf",
+        "trade_id,pool,maturity,attach_pct,detach_pct,coupon_bp,notional,side\n\
+         inf,index,2031-06-20,0,3,500,1e7,buy\n",
+    );
+    refused(
+        &[
+            "value",
+            &named_inf,
+            "--skew",
+            "market-samples/kcx-2026-06-18.csv",
+        ],
+        &format!(
+            "error: {named_inf}:2:1: column \"trade_id\": expected a trade id without the word \
+             \"inf\" (the output would show it where a number that is not finite is refused), \
+             found \"inf\""
+        ),
+    );
     let pools = write_temp(
         "huge_pool_spread",
         "pool,maturity,quote_kind,quote,coupon_bp,recovery_pct\n\
@@ -641,4 +660,82 @@ fn from_to_and_date_choose_the_dates_of_every_history_command() {
         "2026-06-12",
     ]);
     assert_eq!(code, 2, "--date with --to is a usage error");
+}
+
+// ------------------------------------------------- issue 9: formats written down
+
+/// The README links the format and conventions documents, which are in
+/// the repository, and cites no document that is not; the format document
+/// names every column of every sample file and every flag with its short
+/// form and meaning as the program prints them.
+#[test]
+fn formats_are_written_down_in_the_repository() {
+    let root = env!("CARGO_MANIFEST_DIR");
+    let read = |p: &str| {
+        std::fs::read_to_string(format!("{root}/{p}")).unwrap_or_else(|e| panic!("{p}: {e}"))
+    };
+    let readme = read("README.md");
+    for doc in ["docs/formats.md", "docs/conventions.md"] {
+        assert!(
+            readme.contains(&format!("]({doc})")),
+            "README does not link {doc}"
+        );
+    }
+    // Every relative link of the README and of the docs resolves.
+    for (file, text) in [
+        ("README.md", readme.clone()),
+        ("docs/formats.md", read("docs/formats.md")),
+        ("docs/conventions.md", read("docs/conventions.md")),
+    ] {
+        let dir = std::path::Path::new(root).join(file);
+        let dir = dir.parent().expect("dir");
+        for (i, _) in text.match_indices("](") {
+            let target = &text[i + 2..];
+            let target = &target[..target.find(')').expect("link end")];
+            if target.starts_with("http") || target.starts_with('#') {
+                continue;
+            }
+            let path = target.split('#').next().unwrap_or(target);
+            assert!(
+                dir.join(path).exists(),
+                "{file} links {target}, not in the repository"
+            );
+        }
+        assert!(
+            !text.contains("reference-values.md"),
+            "{file} cites reference-values.md"
+        );
+    }
+    assert!(
+        readme.contains("cargo install --path ."),
+        "README: how to put skewbook on the PATH"
+    );
+    let formats = read("docs/formats.md");
+    for sample in [
+        "hgx-2026-06-18.csv",
+        "hgx-default-rates.csv",
+        "lhy-default-counts.csv",
+        "kcx-trades.csv",
+        "kcx-pools.csv",
+    ] {
+        let text = read(&format!("market-samples/{sample}"));
+        for column in text.lines().next().expect("header").split(',') {
+            assert!(
+                formats.contains(&format!("| `{column}` |")),
+                "docs/formats.md: no row for column {column} of {sample}"
+            );
+        }
+    }
+    for flag in skewbook::flags::Flag::ALL {
+        let row = format!(
+            "| `{}` | {} | {} |",
+            flag.name(),
+            flag.short(),
+            flag.meaning()
+        );
+        assert!(
+            formats.contains(&row),
+            "docs/formats.md: expected the row\n{row}"
+        );
+    }
 }

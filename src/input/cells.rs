@@ -515,6 +515,23 @@ impl<'h, 'r, 'p> Row<'h, 'r, 'p> {
         }
     }
 
+    /// A required name or label that the output can print as it is: not
+    /// empty, and without a word the output guard reads as a number that
+    /// is not finite (`inf`, `NaN`: see [`crate::output::shows_non_finite`]).
+    pub fn name(&mut self, id: usize, what: &str) -> Option<&'r str> {
+        let s = self.text(id, what)?;
+        if let Some(word) = crate::output::shows_non_finite(s) {
+            let msg = format!(
+                "expected {what} without the word \"{word}\" (the output would show it where a \
+                 number that is not finite is refused), found {}",
+                quoted(s)
+            );
+            self.bad(id, msg);
+            return None;
+        }
+        Some(s)
+    }
+
     /// A required ISO 8601 date; `what` names it for an empty cell.
     pub fn date(&mut self, id: usize, what: &str) -> Option<NaiveDate> {
         let s = self.cell(id);

@@ -9,7 +9,8 @@
 //! the reader lists every problem of the file at once):
 //! - the header has `period` and exactly one of the two layouts; no other
 //!   column, no column twice;
-//! - `period` is a non-empty label, unique in the file;
+//! - `period` is a non-empty label, unique in the file, without the word
+//!   `inf` or `NaN` (the output would refuse to print it);
 //! - `default_rate_pct` is a number in [0, 100];
 //! - `defaults` and `obligors` are whole numbers, `obligors` from 1 to
 //!   [`MAX_OBLIGORS`] and `defaults` <= `obligors`;
@@ -297,11 +298,7 @@ pub fn parse_history(path: &str, text: &str) -> Result<History> {
         let line = row.line();
         let label = row.cell(PERIOD).to_string();
         let mut labelled = true;
-        if label.is_empty() {
-            row.bad(
-                PERIOD,
-                "expected a period label, found an empty cell".into(),
-            );
+        if row.name(PERIOD, "a period label").is_none() {
             labelled = false;
         } else if let Some(first) = first_line.get(&label) {
             let msg = format!(

@@ -120,7 +120,8 @@ pub fn read_pools(path: &str) -> Result<Pools> {
 ///   pool rows");
 /// - a row with more or fewer cells than the header;
 /// - a required cell left empty, or a coupon on a `spread_bp` row;
-/// - a pool named `index`; a `quote_kind` other than `spread_bp` or
+/// - a pool named `index`, or with the word `inf` or `NaN` in its name (the
+///   output would refuse to print it); a `quote_kind` other than `spread_bp` or
 ///   `upfront_pct`;
 /// - a date that is not ISO 8601 `YYYY-MM-DD`, a number that does not
 ///   parse, or is NaN or infinite;
@@ -212,7 +213,7 @@ struct PoolRow<'r> {
 
 /// Checks one row; `Some` only when every cell is right.
 fn pool_row<'r>(mut row: Row<'_, 'r, '_>) -> Option<PoolRow<'r>> {
-    let pool = row.text(POOL, "a pool name");
+    let pool = row.name(POOL, "a pool name");
     if pool == Some(INDEX_POOL) {
         row.bad(
             POOL,

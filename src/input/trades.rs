@@ -152,7 +152,8 @@ pub fn read_trades(path: &str) -> Result<Trades> {
 ///   required); an empty file or a header with no rows after it ("no trade
 ///   rows");
 /// - a row with more or fewer cells than the header;
-/// - an empty cell;
+/// - an empty cell; a `trade_id` or `pool` with the word `inf` or `NaN`
+///   in it (the output would refuse to print it);
 /// - a `trade_id` seen on an earlier line (the message names it);
 /// - a maturity that is not an ISO 8601 `YYYY-MM-DD` date;
 /// - a number that does not parse, or is NaN or infinite;
@@ -201,7 +202,7 @@ pub fn parse_trades(text: &str, path: &str) -> Result<Trades> {
         if !row.width() {
             continue;
         }
-        let id = row.text(TRADE_ID, "a trade id");
+        let id = row.name(TRADE_ID, "a trade id");
         if let Some(id) = id {
             if let Some(first) = first_line.get(id) {
                 let msg = format!(
@@ -231,7 +232,7 @@ pub fn parse_trades(text: &str, path: &str) -> Result<Trades> {
 /// Checks the cells of a row after its id; `Some` only when the whole row
 /// is right.
 fn trade(mut row: Row, id: Option<&str>) -> Option<Trade> {
-    let pool = row.text(POOL, "a pool name (\"index\" or a pool of the pools file)");
+    let pool = row.name(POOL, "a pool name (\"index\" or a pool of the pools file)");
     let maturity = row.date(MATURITY, "a maturity date");
     let bounds = row.bounds_pct(ATTACH, DETACH);
     let coupon = row.coupon_bp(COUPON, "a running coupon in bp");
