@@ -128,6 +128,61 @@ impl fmt::Display for Error {
 
 impl std::error::Error for Error {}
 
+/// Most problems printed for one file before the rest are counted.
+pub const MAX_LINES_PER_FILE: usize = 20;
+
+/// The lines to print for `problems`: at most `per_file` of each file, in
+/// order, then one line `path: and N more like this` for a file that has
+/// more. Problems with no file position count as one more "file".
+///
+/// A file with a US date in every row of a long history has one problem a
+/// row; its first lines show the pattern, and the rest would only bury the
+/// other messages.
+///
+/// ```
+/// use skewbook::error::{capped, Location, Problem};
+/// let at = |line| Problem::at(
+///     Location { path: "q.csv".into(), line, column: Some(1), header: None },
+///     "expected a date",
+/// );
+/// let problems: Vec<Problem> = (2..=31).map(at).collect();
+/// let lines = capped(&problems, 20);
+/// assert_eq!(lines.len(), 21);
+/// assert_eq!(lines[19], "q.csv:21:1: expected a date");
+/// assert_eq!(lines[20], "q.csv: and 10 more like this");
+/// ```
+pub fn capped(problems: &[Problem], per_file: usize) -> Vec<String> {
+    // Files in order of first appearance: (path, lines, problems not shown).
+    let mut files: Vec<(Option<&str>, Vec<String>, usize)> = Vec::new();
+    for p in problems {
+        let path = p.location.as_ref().map(|l| l.path.as_str());
+        let i = match files.iter().position(|f| f.0 == path) {
+            Some(i) => i,
+            None => {
+                files.push((path, Vec::new(), 0));
+                files.len() - 1
+            }
+        };
+        let f = &mut files[i];
+        if f.1.len() < per_file {
+            f.1.push(p.to_string());
+        } else {
+            f.2 += 1;
+        }
+    }
+    let mut out = Vec::new();
+    for (path, lines, more) in files {
+        out.extend(lines);
+        if more > 0 {
+            out.push(match path {
+                Some(p) => format!("{p}: and {more} more like this"),
+                None => format!("and {more} more like this"),
+            });
+        }
+    }
+    out
+}
+
 /// Result with the library's [`Error`].
 pub type Result<T> = std::result::Result<T, Error>;
 

@@ -195,3 +195,19 @@ pub fn select_date(snapshot: &Snapshot, only: Option<chrono::NaiveDate>) -> Resu
         warnings: snapshot.warnings.clone(),
     })
 }
+
+/// The dates of a snapshot for a message: all of them up to six, else the
+/// count and the first and last.
+pub fn date_span(snapshot: &Snapshot) -> String {
+    let have: Vec<String> = snapshot.dates.iter().map(|m| m.date.to_string()).collect();
+    if have.len() > 6 {
+        format!(
+            "{} dates, {} to {}",
+            have.len(),
+            have[0],
+            have[have.len() - 1]
+        )
+    } else {
+        have.join(", ")
+    }
+}

@@ -20,11 +20,18 @@ mod curve;
 /// the implied loss distribution, the repair of knots that are not
 /// admissible, interpolation across maturity, the monotone convex curve.
 mod elinterp;
+/// Mutated samples through every reader and command in process: no panic,
+/// located errors, only finite numbers (`SKEWBOOK_FUZZ_CASES` for long runs).
+mod fuzz;
 /// The command line against the independent Python implementation's fixtures.
 mod independent;
 /// Interpolation of the skew: PCHIP and linear against scipy, isotonic
 /// regression, the concave quadratic spline's shape laws.
 mod interp;
+/// The mistakes people make with their files: domains, unit flags, the
+/// index check, history warnings, capped errors, delimiters and headers,
+/// the summary of a long run, date filters.
+mod mistakes;
 /// Sample outputs against the fixtures recorded before a refactoring.
 mod outputs;
 /// Real-world calibration: estimators against an independent Python

@@ -189,7 +189,22 @@ fn page_carries_every_number_of_the_implied_json() {
             k.sort();
             k
         };
-        assert_eq!(keys(d), ["date", "index", "recovery", "tranches"]);
+        assert_eq!(
+            keys(d),
+            ["date", "index", "index_check", "recovery", "tranches"]
+        );
+        for c in d["index_check"].as_array().expect("index_check") {
+            let m = c["maturity"].as_str().expect("maturity");
+            let row = rows
+                .get(&format!("index-check-{m}"))
+                .unwrap_or_else(|| panic!("{sample}: no index check row {m}"));
+            for w in [fixed(f(&c["gap_bp"]), 4), fixed(f(&c["tolerance_bp"]), 4)] {
+                assert!(
+                    has_number(row, &w),
+                    "{sample} index check {m}: {w} not in {row}"
+                );
+            }
+        }
         for p in d["index"].as_array().expect("index") {
             assert_eq!(
                 keys(p),
@@ -215,7 +230,9 @@ fn page_carries_every_number_of_the_implied_json() {
                     "base_correlation",
                     "base_note",
                     "base_reprice_error",
+                    "check_note",
                     "compound_correlation",
+                    "compound_note",
                     "compound_range",
                     "coupon_bp",
                     "detach_pct",
@@ -305,11 +322,13 @@ fn page_carries_every_number_of_the_implied_json() {
                     rows.contains_key(&format!("flag-{name}")) && all_text.contains(&meaning[1..]);
                 assert!(explained, "{sample}: flag {name} not explained");
             }
-            if let Some(note) = t["base_note"].as_str() {
-                assert!(
-                    all_text.contains(note),
-                    "{sample} {id}: note {note:?} missing"
-                );
+            for field in ["compound_note", "base_note", "check_note"] {
+                if let Some(note) = t[field].as_str() {
+                    assert!(
+                        all_text.contains(note),
+                        "{sample} {id}: {field} {note:?} missing"
+                    );
+                }
             }
         }
     }

@@ -197,7 +197,16 @@ pub fn write_report<R: Report>(
 
 /// A cell, title or note that would print a non-finite number: a word
 /// `NaN`, `inf` or `-inf` (as Rust formats them), wherever it stands.
-fn shows_non_finite(text: &str) -> Option<&'static str> {
+/// The readers refuse names and labels with such a word
+/// (`input::trades`, `input::pools`, `input::history`), so that text read
+/// from a file never trips this scan.
+///
+/// ```
+/// use skewbook::output::shows_non_finite;
+/// assert_eq!(shows_non_finite("0.1..NaN"), Some("NaN"));
+/// assert_eq!(shows_non_finite("infra-1"), None);
+/// ```
+pub fn shows_non_finite(text: &str) -> Option<&'static str> {
     let mut words = text.split(|c: char| !(c.is_ascii_alphanumeric() || c == '-' || c == '+'));
     words.find_map(|w| match w.trim_start_matches(['-', '+']) {
         "NaN" => Some("NaN"),

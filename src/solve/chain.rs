@@ -6,13 +6,30 @@
 //! in parallel; reports only format what it returns.
 
 use super::base::{base_correlation_from_scan, BaseSolve, Side};
-use super::compound::{compound_roots_from_scan, scan_grid, CompoundSolve};
+use super::compound::{compound_roots_from_scan, scan_grid, CompoundSolve, RHO_MAX, RHO_MIN};
 use crate::curve::Pool;
 use crate::error::Result;
 use crate::flags::Flag;
 use crate::market::{tiles_from_zero, MarketDate, TrancheQuote};
 use crate::tranche::{BaseLegs, Tranche, TrancheSchedule, TrancheValuer};
 use chrono::NaiveDate;
+
+/// How close to a search limit ([`RHO_MIN`], [`RHO_MAX`]) a compound or
+/// base correlation may come before it is flagged
+/// [`Flag::NearSearchLimit`]: 0.005 (0.5%, absolute). A quote in the wrong
+/// unit (a spread of 2.41 meant as 241 bp) solves to the search floor.
+pub const NEAR_LIMIT: f64 = 0.005;
+
+/// Whether `rho` lies within [`NEAR_LIMIT`] of a search limit.
+///
+/// ```
+/// use skewbook::solve::chain::near_limit;
+/// assert!(near_limit(0.0003) && near_limit(0.9993));
+/// assert!(!near_limit(0.18) && !near_limit(0.99));
+/// ```
+pub fn near_limit(rho: f64) -> bool {
+    rho - RHO_MIN <= NEAR_LIMIT || RHO_MAX - rho <= NEAR_LIMIT
+}
 
 /// One knot of a base-correlation curve.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -297,6 +314,19 @@ pub fn implied_maturity(
             }
         };
         flags.extend(base_flag(&base));
+        let base_rho = match base {
+            BaseOutcome::Solved { rho_detach, .. } => Some(rho_detach),
+            _ => None,
+        };
+        if comp
+            .roots
+            .iter()
+            .map(|r| r.value)
+            .chain(base_rho)
+            .any(near_limit)
+        {
+            flags.push(Flag::NearSearchLimit);
+        }
         out.push(TrancheImplied {
             quote: (*t).clone(),
             compound: Some(comp),

@@ -129,9 +129,6 @@ pub struct SurfaceArgs {
         allow_negative_numbers = true
     )]
     pub step_pct: f64,
-    /// Only this trade date of a history (ISO 8601); default every date.
-    #[arg(long, value_name = "YYYY-MM-DD")]
-    pub date: Option<chrono::NaiveDate>,
 }
 
 /// `skewbook value`.
@@ -234,9 +231,36 @@ pub struct MarketArgs {
     pub file: String,
     #[command(flatten)]
     pub curve: CurveChoiceArgs,
+    #[command(flatten)]
+    pub dates: DateArgs,
     /// Output format.
     #[arg(long, value_enum, default_value_t)]
     pub format: FormatArg,
+}
+
+/// Which trade dates of a history to run (default every date).
+#[derive(Debug, Args)]
+pub struct DateArgs {
+    /// Only this trade date of a history (ISO 8601).
+    #[arg(long, value_name = "YYYY-MM-DD", conflicts_with_all = ["from", "to"])]
+    pub date: Option<chrono::NaiveDate>,
+    /// No trade date before this one (ISO 8601, included).
+    #[arg(long, value_name = "YYYY-MM-DD")]
+    pub from: Option<chrono::NaiveDate>,
+    /// No trade date after this one (ISO 8601, included).
+    #[arg(long, value_name = "YYYY-MM-DD")]
+    pub to: Option<chrono::NaiveDate>,
+}
+
+impl DateArgs {
+    /// The filter the library applies.
+    pub fn filter(&self) -> skewbook::report::DateFilter {
+        skewbook::report::DateFilter {
+            date: self.date,
+            from: self.from,
+            to: self.to,
+        }
+    }
 }
 
 /// `skewbook curve`.
@@ -262,6 +286,16 @@ pub struct PriceArgs {
 pub struct ImpliedArgs {
     #[command(flatten)]
     pub market: MarketArgs,
+    /// Largest gap in bp of running spread between the protection a
+    /// maturity's tranche quotes imply (when they tile 0-100%) and the index
+    /// curve's; a larger gap flags the maturity `index_mismatch`.
+    #[arg(
+        long,
+        value_name = "BP",
+        default_value_t = skewbook::consistency::DEFAULT_TOLERANCE_BP,
+        allow_negative_numbers = true
+    )]
+    pub index_tolerance: f64,
 }
 
 /// `skewbook loss`.

@@ -85,6 +85,15 @@ impl From<io::Error> for Failure {
     }
 }
 
+/// Prints problems on standard error, `prefix: ` before each, at most
+/// [`skewbook::error::MAX_LINES_PER_FILE`] of each file and then one line
+/// "and N more like this".
+pub fn print_problems(prefix: &str, problems: &[skewbook::error::Problem]) {
+    for line in skewbook::error::capped(problems, skewbook::error::MAX_LINES_PER_FILE) {
+        eprintln!("{prefix}: {line}");
+    }
+}
+
 fn main() -> ExitCode {
     let cli = match Cli::try_parse() {
         Ok(c) => c,
@@ -116,9 +125,7 @@ fn main() -> ExitCode {
             ExitCode::from(2)
         }
         Err(Failure::Lib(e)) => {
-            for p in &e.problems {
-                eprintln!("error: {p}");
-            }
+            print_problems("error", &e.problems);
             ExitCode::from(e.exit_code())
         }
     }

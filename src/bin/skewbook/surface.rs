@@ -7,13 +7,14 @@ use std::io::Write;
 
 /// Runs the command: violations are results (exit 0), not errors.
 pub fn run(args: SurfaceArgs, out: &mut dyn Write) -> Result<Outcome, Failure> {
+    // `--date`, `--from` and `--to` are applied by `load`.
     let (snapshot, opts) = crate::curve::load(&args.market)?;
     let report = skewbook::report::surface::build(
         &snapshot,
         &opts,
         args.interp.into(),
         crate::units::to_fraction(args.step_pct),
-        args.date,
+        None,
     )?;
     write_report(out, &report, args.market.format.into())?;
     Ok(Outcome::Clean)

@@ -194,6 +194,41 @@ fn index_table(h: &mut Html, d: &ImpliedDate) {
     .write(h);
 }
 
+/// The tiled maturities' quotes against the index curve.
+fn index_check_table(h: &mut Html, d: &ImpliedDate) {
+    if d.index_check.is_empty() {
+        return;
+    }
+    let rows = d
+        .index_check
+        .iter()
+        .map(|c| {
+            (
+                Some(format!("index-check-{}", c.maturity)),
+                vec![
+                    Cell::T(c.maturity.clone()),
+                    Cell::N(fixed(c.gap_bp, 4)),
+                    Cell::N(fixed(c.tolerance_bp, 4)),
+                    Cell::T(
+                        if c.mismatch {
+                            "index_mismatch"
+                        } else {
+                            "agree"
+                        }
+                        .to_string(),
+                    ),
+                ],
+            )
+        })
+        .collect();
+    Table {
+        caption: "Tranches that tile 0-100% against the index: protection gap as running spread on the index annuity".to_string(),
+        headers: &["maturity", "gap (bp)", "tolerance (bp)", "result"],
+        rows,
+    }
+    .write(h);
+}
+
 /// A quote in its file unit: `241.1000 bp`, `42.8700% upfront + 500 bp`.
 fn quote_text(kind: &str, quote: f64, coupon_bp: Option<f64>) -> String {
     match (kind, coupon_bp) {
@@ -249,14 +284,17 @@ fn implied_table(h: &mut Html, maturity: &str, rows: &[&ImpliedTranche]) {
     .write(h);
     let notes: Vec<String> = rows
         .iter()
-        .filter_map(|t| {
-            t.base_note.as_ref().map(|n| {
-                format!(
-                    "{}-{}%: {n}",
-                    short(t.tranche.attach_pct),
-                    short(t.tranche.detach_pct)
-                )
-            })
+        .flat_map(|t| {
+            [&t.compound_note, &t.base_note, &t.check_note]
+                .into_iter()
+                .flatten()
+                .map(|n| {
+                    format!(
+                        "{}-{}%: {n}",
+                        short(t.tranche.attach_pct),
+                        short(t.tranche.detach_pct)
+                    )
+                })
         })
         .collect();
     if !notes.is_empty() {
@@ -659,6 +697,7 @@ pub fn page(charts: &Charts) -> Result<String> {
     h.open("section", &[("id", "index")]);
     h.el("h2", &[], "Index curve");
     index_table(&mut h, &d);
+    index_check_table(&mut h, &d);
     h.close("section");
 
     h.open("section", &[("id", "implied")]);
