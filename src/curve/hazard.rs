@@ -7,7 +7,7 @@
 //! depends only on the hazard up to its own protection end, so once a pillar
 //! is solved, later pillars cannot disturb it: every quote reprices exactly.
 
-use super::legs::{index_legs, index_legs_of_periods, IndexLegs};
+use super::legs::{index_legs, index_legs_of_periods, IndexLegs, LastPieceLegs};
 use super::piecewise::PiecewiseConstant;
 use super::DiscountCurve;
 use crate::dates::Schedule;
@@ -172,11 +172,21 @@ pub fn bootstrap(
             recovery,
             0..split,
         );
+        v.pop();
+        v.push(0.0);
+        // The periods this pillar's hazard moves, with everything else
+        // about them computed once.
+        let curve0 = HazardCurve::from_knots(&k, &v);
+        let moving = LastPieceLegs::new(
+            &schedule,
+            discount,
+            curve0.rate(),
+            previous,
+            recovery,
+            split..n,
+        );
         let legs_at = |h: f64| {
-            let mut v = hazards.clone();
-            v.push(h);
-            let curve = HazardCurve::from_knots(&k, &v);
-            let rest = index_legs_of_periods(&schedule, discount, curve.rate(), recovery, split..n);
+            let rest = moving.legs(h);
             IndexLegs {
                 protection: fixed.protection + rest.protection,
                 annuity: fixed.annuity + rest.annuity,

@@ -42,8 +42,14 @@ fn exp_moments_series(lambda: f64, dt: f64) -> (f64, f64) {
     let x = lambda * dt;
     let (mut term, mut s1, mut s2) = (1.0, 0.0, 0.0);
     for n in 0..24 {
-        s1 += term / (n + 1) as f64;
-        s2 += term / (n + 2) as f64;
+        let (t1, t2) = (s1 + term / (n + 1) as f64, s2 + term / (n + 2) as f64);
+        // |x| < 0.5: each term is under half the one before, so once a
+        // term leaves both sums unchanged, every later one does too (the
+        // sums are the 24-term sums to the bit).
+        if t1 == s1 && t2 == s2 {
+            break;
+        }
+        (s1, s2) = (t1, t2);
         term *= -x / (n + 1) as f64;
     }
     (dt * s1, dt * dt * s2)
@@ -168,6 +174,155 @@ pub fn index_legs_of_periods(
     IndexLegs {
         protection: (1.0 - recovery) * default_pv,
         annuity,
+    }
+}
+
+/// One sub-interval of a period, as [`LastPieceLegs`] keeps it.
+#[derive(Debug, Clone, Copy)]
+enum Piece {
+    /// Under a hazard knot already solved: its contributions to the
+    /// discounted default probability and to the accrued-on-default
+    /// integral, computed once (`None` for a zero hazard).
+    Fixed(Option<(f64, f64)>),
+    /// On the segment being solved, [start, start + dt).
+    Solved {
+        /// Start of the sub-interval.
+        a: f64,
+        /// Its length.
+        dt: f64,
+        /// Start minus the period start (the accrual's time weight).
+        since_start: f64,
+        /// Forward rate on it.
+        fwd: f64,
+        /// Integral of the forward rate from 0 to `a`.
+        fwd_integral: f64,
+    },
+}
+
+/// One period of [`LastPieceLegs`]: its sub-intervals and its end.
+#[derive(Debug, Clone)]
+struct PeriodPieces {
+    pieces: Vec<Piece>,
+    /// accrual · DF(pay).
+    accrual_df: f64,
+    /// Curve time of the period end.
+    t_end: f64,
+}
+
+/// The index legs of some periods of a schedule as a function of the one
+/// hazard rate not yet solved: the rate from the last solved knot `s0`
+/// onward. Everything else (the sub-intervals, the forward curve on them,
+/// the contributions under solved knots) is computed once, so the
+/// bootstrap's solver evaluates only what moves with that rate.
+///
+/// [`LastPieceLegs::legs`] returns what [`index_legs_of_periods`] returns
+/// on the curve with that hazard, to the bit: the same operations on the
+/// same numbers, in the same order.
+#[derive(Debug, Clone)]
+pub(crate) struct LastPieceLegs {
+    periods: Vec<PeriodPieces>,
+    /// Where the solved segment starts (the last solved knot, or 0).
+    s0: f64,
+    /// The hazard integral from 0 to `s0`.
+    integral_s0: f64,
+    recovery: f64,
+}
+
+impl LastPieceLegs {
+    /// The periods `range` of `schedule` on `curve`, a hazard curve whose
+    /// knots after `s0` all carry the one rate being solved (any value:
+    /// only its knots and the rates before `s0` are read).
+    pub(crate) fn new(
+        schedule: &Schedule,
+        discount: &DiscountCurve,
+        curve: &PiecewiseConstant,
+        s0: f64,
+        recovery: f64,
+        range: std::ops::Range<usize>,
+    ) -> Self {
+        let fwd = discount.forward();
+        let mut cuts = Vec::with_capacity(8);
+        let mut periods = Vec::with_capacity(range.len());
+        for p in &schedule.periods[range] {
+            breakpoints(p.t_start, p.t_end, curve, fwd, &mut cuts);
+            let pieces = cuts
+                .windows(2)
+                .map(|w| {
+                    let (a, b) = (w[0], w[1]);
+                    if s0 > 0.0 && a < s0 {
+                        let h = curve.value_at(a);
+                        if h == 0.0 {
+                            return Piece::Fixed(None);
+                        }
+                        let lambda = h + fwd.value_at(a);
+                        let ds = (-(curve.integral(a) + fwd.integral(a))).exp();
+                        let (e1, e2) = exp_moments(lambda, b - a);
+                        Piece::Fixed(Some((h * ds * e1, h * ds * ((a - p.t_start) * e1 + e2))))
+                    } else {
+                        Piece::Solved {
+                            a,
+                            dt: b - a,
+                            since_start: a - p.t_start,
+                            fwd: fwd.value_at(a),
+                            fwd_integral: fwd.integral(a),
+                        }
+                    }
+                })
+                .collect();
+            periods.push(PeriodPieces {
+                pieces,
+                accrual_df: p.accrual * discount.df(p.t_pay),
+                t_end: p.t_end,
+            });
+        }
+        LastPieceLegs {
+            periods,
+            s0,
+            integral_s0: curve.integral(s0),
+            recovery,
+        }
+    }
+
+    /// The legs with hazard `h` from `s0` on.
+    pub(crate) fn legs(&self, h: f64) -> IndexLegs {
+        // The hazard integral at t >= s0, as PiecewiseConstant::integral
+        // forms it on the segment starting at s0.
+        let integral = |t: f64| self.integral_s0 + h * (t - self.s0);
+        let (mut default_pv, mut annuity) = (0.0, 0.0);
+        for p in &self.periods {
+            let mut accrued = 0.0;
+            for piece in &p.pieces {
+                match *piece {
+                    Piece::Fixed(None) => {}
+                    Piece::Fixed(Some((pv, acc))) => {
+                        default_pv += pv;
+                        accrued += acc;
+                    }
+                    Piece::Solved {
+                        a,
+                        dt,
+                        since_start,
+                        fwd,
+                        fwd_integral,
+                    } => {
+                        if h == 0.0 {
+                            continue;
+                        }
+                        let lambda = h + fwd;
+                        let ds = (-(integral(a) + fwd_integral)).exp();
+                        let (e1, e2) = exp_moments(lambda, dt);
+                        default_pv += h * ds * e1;
+                        accrued += h * ds * (since_start * e1 + e2);
+                    }
+                }
+            }
+            let survival_end = (-integral(p.t_end)).exp();
+            annuity += p.accrual_df * survival_end + accrued * 365.0 / 360.0;
+        }
+        IndexLegs {
+            protection: (1.0 - self.recovery) * default_pv,
+            annuity,
+        }
     }
 }
 

@@ -49,6 +49,7 @@
 //! - R. L. Plackett, "A reduction formula for normal multivariate
 //!   integrals", Biometrika 41 (1954) 351-360.
 
+use super::exp::exp_in_place;
 use super::normal::cdf as norm_cdf;
 
 use std::f64::consts::PI;
@@ -311,38 +312,97 @@ impl Bvn {
     /// ```
     #[inline]
     pub fn cdf(&self, h: f64, k: f64) -> f64 {
-        if h.is_nan() || k.is_nan() {
-            return f64::NAN;
-        }
-        if h <= -FAR || k <= -FAR {
-            return 0.0;
-        }
-        if h >= FAR {
-            return if k >= FAR { 1.0 } else { norm_cdf(k) };
-        }
-        if k >= FAR {
-            return norm_cdf(h);
-        }
-        self.upper(-h, -k).clamp(0.0, 1.0)
+        self.cdf_by(h, k, &OnDemand { h, k })
     }
 
-    /// `P(X > h, Y > k)` for `|h|, |k| < FAR`; Genz's BVND.
-    fn upper(&self, h: f64, k: f64) -> f64 {
+    /// [`Bvn::cdf`] with the normal CDF at `h`, `-h`, `k` and `-k` already
+    /// known: the tranche pricer keeps them per horizon and per bound, so a
+    /// call costs the node sum and at most one more normal CDF.
+    ///
+    /// # Formula
+    ///
+    /// See [`bvn_cdf`]; `tails` must hold `N(h)`, `N(-h)`, `N(k)`, `N(-k)`.
+    ///
+    /// # References
+    ///
+    /// A. Genz (2004), Statistics and Computing 14.
+    ///
+    /// # Example
+    ///
+    /// ```
+    /// use skewbook::math::bvn::{Bvn, Tails};
+    /// use skewbook::math::normal::cdf;
+    /// let (h, k) = (-1.0, 0.5);
+    /// let tails = Tails { h: cdf(h), minus_h: cdf(-h), k: cdf(k), minus_k: cdf(-k) };
+    /// let at = Bvn::new(-0.6);
+    /// assert_eq!(at.cdf_with(h, k, &tails), at.cdf(h, k));
+    /// ```
+    #[inline]
+    pub fn cdf_with(&self, h: f64, k: f64, tails: &Tails) -> f64 {
+        self.cdf_by(h, k, tails)
+    }
+
+    #[inline]
+    fn cdf_by(&self, h: f64, k: f64, n: &impl NormalAt) -> f64 {
+        if let Some(v) = self.edge(h, k, n) {
+            return v;
+        }
+        // upper(-h, -k): its "N(-h')" is N(h), and so on.
+        self.upper(-h, -k, &Negated(n)).clamp(0.0, 1.0)
+    }
+
+    /// The value where no node sum is needed (NaN or a bound beyond
+    /// [`FAR`]), else `None`.
+    #[inline]
+    fn edge(&self, h: f64, k: f64, n: &impl NormalAt) -> Option<f64> {
+        if h.is_nan() || k.is_nan() {
+            Some(f64::NAN)
+        } else if h <= -FAR || k <= -FAR {
+            Some(0.0)
+        } else if h >= FAR {
+            Some(if k >= FAR { 1.0 } else { n.k() })
+        } else if k >= FAR {
+            Some(n.h())
+        } else {
+            None
+        }
+    }
+
+    /// `P(X > h, Y > k)` for `|h|, |k| < FAR`; Genz's BVND. `n` gives the
+    /// normal CDF at `h`, `-h`, `k`, `-k` of these arguments.
+    #[inline]
+    fn upper(&self, h: f64, k: f64, n: &impl NormalAt) -> f64 {
         let hk = h * k;
+        let len = self.len;
         match self.form {
-            Form::Independent => return norm_cdf(-h) * norm_cdf(-k),
+            Form::Independent => return n.minus_h() * n.minus_k(),
             Form::Angle => {
+                // The exponentials first, in SIMD lanes; then the weighted
+                // sum in node order.
                 let hs = 0.5 * (h * h + k * k);
-                let mut sum = 0.0;
-                for j in 0..self.len {
-                    sum += self.w[j] * ((self.p[j] * hk - hs) * self.q[j]).exp();
+                let mut e = [0.0; 20];
+                let e = &mut e[..len];
+                for ((e, p), q) in e.iter_mut().zip(&self.p[..len]).zip(&self.q[..len]) {
+                    *e = (p * hk - hs) * q;
                 }
-                return sum * self.scale + norm_cdf(-h) * norm_cdf(-k);
+                exp_in_place(e);
+                let mut sum = 0.0;
+                for (w, e) in self.w[..len].iter().zip(e.iter()) {
+                    sum += w * e;
+                }
+                return sum * self.scale + n.minus_h() * n.minus_k();
             }
             Form::Series | Form::Degenerate => {}
         }
         // |r| >= 0.925: reflect r < 0 onto r > 0 through k -> -k.
-        let (k, hk) = if self.r < 0.0 { (-k, -hk) } else { (k, hk) };
+        let reflect = self.r < 0.0;
+        let (k, hk) = if reflect { (-k, -hk) } else { (k, hk) };
+        // N(-k) and N(k) of the reflected k.
+        let (n_minus_k, n_k) = if reflect {
+            (n.k(), n.minus_k())
+        } else {
+            (n.minus_k(), n.k())
+        };
         let mut bvn = 0.0;
         if self.form == Form::Series {
             let a_s = self.scale;
@@ -363,27 +423,123 @@ impl Bvn {
             }
             // Both halves of the rule in Genz's second form:
             // exp(-(bs/xs + hk)/2) (exp(-hk (1-rs)/(2(1+rs))) / rs - (1 + c xs (1 + d xs)))
-            for j in 0..self.len {
+            // with the exponentials of every node in one batch.
+            let mut e = [0.0; 40];
+            let (e1, e2) = e.split_at_mut(len);
+            let e2 = &mut e2[..len];
+            for (((e1, e2), p), t) in e1.iter_mut().zip(e2.iter_mut()).zip(&self.p).zip(&self.t) {
+                *e1 = -0.5 * (bs * p + hk);
+                *e2 = -hk * t;
+            }
+            exp_in_place(&mut e[..2 * len]);
+            let (e1, e2) = e.split_at(len);
+            for j in 0..len {
                 let xs = self.q[j];
-                bvn += self.w[j]
-                    * (-0.5 * (bs * self.p[j] + hk)).exp()
-                    * ((-hk * self.t[j]).exp() * self.u[j] - (1.0 + c * xs * (1.0 + d * xs)));
+                bvn += self.w[j] * e1[j] * (e2[j] * self.u[j] - (1.0 + c * xs * (1.0 + d * xs)));
             }
             bvn = -bvn / TWO_PI;
         }
         if self.r > 0.0 {
-            bvn + norm_cdf(-h.max(k))
+            bvn + if h >= k { n.minus_h() } else { n_minus_k }
         } else {
             let mut bvn = -bvn;
             if k > h {
                 bvn += if h < 0.0 {
-                    norm_cdf(k) - norm_cdf(h)
+                    n_k - n.h()
                 } else {
-                    norm_cdf(-h) - norm_cdf(-k)
+                    n.minus_h() - n_minus_k
                 };
             }
             bvn
         }
+    }
+}
+
+/// The normal CDF at `h`, `-h`, `k` and `-k`, for [`Bvn::cdf_with`].
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Tails {
+    /// `N(h)`.
+    pub h: f64,
+    /// `N(-h)`.
+    pub minus_h: f64,
+    /// `N(k)`.
+    pub k: f64,
+    /// `N(-k)`.
+    pub minus_k: f64,
+}
+
+/// Where the node sums find the normal CDF of their bounds: computed on
+/// demand ([`OnDemand`]) or given ([`Tails`]).
+trait NormalAt {
+    fn h(&self) -> f64;
+    fn minus_h(&self) -> f64;
+    fn k(&self) -> f64;
+    fn minus_k(&self) -> f64;
+}
+
+impl NormalAt for Tails {
+    #[inline]
+    fn h(&self) -> f64 {
+        self.h
+    }
+    #[inline]
+    fn minus_h(&self) -> f64 {
+        self.minus_h
+    }
+    #[inline]
+    fn k(&self) -> f64 {
+        self.k
+    }
+    #[inline]
+    fn minus_k(&self) -> f64 {
+        self.minus_k
+    }
+}
+
+/// The bounds themselves; each normal CDF is computed when asked for.
+struct OnDemand {
+    h: f64,
+    k: f64,
+}
+
+impl NormalAt for OnDemand {
+    #[inline]
+    fn h(&self) -> f64 {
+        norm_cdf(self.h)
+    }
+    #[inline]
+    fn minus_h(&self) -> f64 {
+        norm_cdf(-self.h)
+    }
+    #[inline]
+    fn k(&self) -> f64 {
+        norm_cdf(self.k)
+    }
+    #[inline]
+    fn minus_k(&self) -> f64 {
+        norm_cdf(-self.k)
+    }
+}
+
+/// The tails of `-h` and `-k`, from those of `h` and `k`.
+struct Negated<'a, N: ?Sized>(&'a N);
+
+impl<N: NormalAt> NormalAt for Negated<'_, N> {
+    #[inline]
+    fn h(&self) -> f64 {
+        self.0.minus_h()
+    }
+    #[inline]
+    fn minus_h(&self) -> f64 {
+        self.0.h()
+    }
+    #[inline]
+    fn k(&self) -> f64 {
+        self.0.minus_k()
+    }
+    #[inline]
+    fn minus_k(&self) -> f64 {
+        self.0.k()
     }
 }
 

@@ -3,12 +3,15 @@
 //!
 //! - [`normal`]: the normal CDF, density and inverse;
 //! - [`bvn`]: the bivariate normal CDF (Genz 2004);
+//! - [`exp`]: a branch-free exponential whose loops vectorise (the
+//!   bivariate normal's node sums);
 //! - [`root`]: the stopping rule ([`root::Tolerance`]) kept apart from the
 //!   solvers (Brent, bracketed Newton), and what a solve returns;
 //! - [`interp`]: knot interpolation (linear, monotone cubic), isotonic
 //!   regression and a shape-preserving concave spline.
 
 pub mod bvn;
+pub mod exp;
 pub mod interp;
 pub mod normal;
 pub mod root;

@@ -161,12 +161,18 @@ impl TrancheSchedule {
         match method {
             // The closed form's fast path: the bivariate normal's rule for
             // this correlation is built once for every date.
-            Method::ClosedForm => {
-                let corr = Correlation::new(rho);
-                self.sum_legs(|h| base.closed_form(h, &corr))
-            }
+            Method::ClosedForm => self.base_legs_at(base, &Correlation::new(rho)),
             Method::Quadrature => self.sum_legs(|h| base.expectation(h, rho, method)),
         }
+    }
+
+    /// [`Self::base_legs`] at a precomputed correlation (the bivariate
+    /// normal's rule built once for several base tranches).
+    pub fn base_legs_at(&self, base: &BaseTranche, corr: &Correlation) -> BaseLegs {
+        if base.detach <= 0.0 {
+            return BaseLegs::default();
+        }
+        self.sum_legs(|h| base.closed_form(h, corr))
     }
 
     /// Expected loss E[min(L, K)] of a base tranche at step-in and at every
@@ -186,10 +192,12 @@ impl TrancheSchedule {
     fn sum_legs(&self, at: impl Fn(&Horizon) -> BaseExpectation) -> BaseLegs {
         let mut legs = BaseLegs::default();
         let mut prev = at(&self.horizons[0]);
-        for (i, h) in self.horizons[1..].iter().enumerate() {
+        for ((h, &df), &w) in self.horizons[1..]
+            .iter()
+            .zip(&self.df_pay)
+            .zip(&self.half_accrual_df)
+        {
             let cur = at(h);
-            let df = self.df_pay[i];
-            let w = self.half_accrual_df[i];
             legs.protection += df * (cur.loss - prev.loss);
             legs.d_protection += df * (cur.dloss_drho - prev.dloss_drho);
             legs.annuity += w * (prev.outstanding + cur.outstanding);
