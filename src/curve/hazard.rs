@@ -13,7 +13,7 @@ use super::DiscountCurve;
 use crate::dates::Schedule;
 use crate::error::{Error, ErrorKind, Problem, Result};
 use crate::market::{IndexQuote, Quote};
-use crate::math::root::{brent, Tolerance};
+use crate::math::root::{newton_bracketed_hermite, Tolerance};
 use chrono::NaiveDate;
 
 /// Piecewise-constant pool hazard rate in curve time (Act/365F).
@@ -193,6 +193,25 @@ pub fn bootstrap(
             }
         };
         let gap = |h: f64| model_quote(legs_at(h), q.quote, df_settle) - target;
+        // The gap and its derivative in h, for Newton.
+        let gap_and_slope = |h: f64| {
+            let (rest, d) = moving.legs_and_slope(h);
+            let legs = IndexLegs {
+                protection: fixed.protection + rest.protection,
+                annuity: fixed.annuity + rest.annuity,
+            };
+            let slope = match q.quote {
+                Quote::Spread(_) => {
+                    (d.protection * legs.annuity - legs.protection * d.annuity)
+                        / (legs.annuity * legs.annuity)
+                        * 1e4
+                }
+                Quote::Upfront { coupon, .. } => {
+                    (d.protection - coupon * d.annuity) / df_settle * 100.0
+                }
+            };
+            (model_quote(legs, q.quote, df_settle) - target, slope)
+        };
         let fail = |why: String| {
             Error::new(
                 ErrorKind::Unfittable,
@@ -205,7 +224,7 @@ pub fn bootstrap(
                 )),
             )
         };
-        let g0 = gap(0.0);
+        let (g0, s0) = gap_and_slope(0.0);
         if g0 > REPRICE_TOLERANCE {
             let why = if knots.is_empty() {
                 "a pool with no default risk already pays more than the quote"
@@ -222,15 +241,16 @@ pub fn bootstrap(
         // before step-in and the protection bought shrinks again; so when no
         // grid point reaches the quote, look for the maximum in between.
         let (mut lo, mut hi) = (0.0, 0.05);
-        let mut ghi = gap(hi);
+        let (mut glo, mut slo) = (g0, s0);
+        let (mut ghi, mut shi) = gap_and_slope(hi);
         let mut best = (0.0, g0);
         while ghi < 0.0 && hi < 1e3 {
             if ghi > best.1 {
                 best = (hi, ghi);
             }
-            lo = hi;
+            (lo, glo, slo) = (hi, ghi, shi);
             hi *= 4.0;
-            ghi = gap(hi);
+            (ghi, shi) = gap_and_slope(hi);
         }
         if ghi < 0.0 {
             let (a, b) = if best.0 == 0.0 {
@@ -248,13 +268,18 @@ pub fn bootstrap(
             // The rising branch: every grid point below the peak is below the quote.
             lo = if best.0 == 0.0 { 0.0 } else { best.0 / 4.0 }.min(peak);
             hi = peak;
+            (glo, slo) = gap_and_slope(lo);
+            (ghi, shi) = gap_and_slope(hi);
         }
         let tol = Tolerance {
-            residual: REPRICE_TOLERANCE,
+            residual: REPRICE_TOLERANCE * 1e-2,
             width: 1e-16,
             max_iterations: 200,
         };
-        let sol = brent(gap, lo, hi, tol).map_err(|e| fail(format!("the solver stopped: {e}")))?;
+        // Newton with the analytic slope, kept inside the bracket, started
+        // from the cubic through the bracket's values and slopes.
+        let sol = newton_bracketed_hermite(gap_and_slope, (lo, hi), (glo, ghi), (slo, shi), tol)
+            .map_err(|e| fail(format!("the solver stopped: {e}")))?;
         let h = sol.value.max(0.0);
         knots.push(knot);
         hazards.push(h);

@@ -63,6 +63,27 @@ fn exp_moments_closed(lambda: f64, dt: f64) -> (f64, f64) {
     )
 }
 
+/// E3 = ∫₀^Δ τ² e^(-λτ) dτ (= -dE2/dλ), by its series below |λΔ| = 0.5
+/// (Δ³ Σ (-x)ⁿ / ((n+3) n!)) and in closed form above
+/// ((2 - e^(-x)(x² + 2x + 2)) / λ³).
+fn exp_moment3(lambda: f64, dt: f64) -> f64 {
+    let x = lambda * dt;
+    if x.abs() < 0.5 {
+        let (mut term, mut s3) = (1.0, 0.0);
+        for n in 0..24 {
+            let t3 = s3 + term / (n + 3) as f64;
+            if t3 == s3 {
+                break;
+            }
+            s3 = t3;
+            term *= -x / (n + 1) as f64;
+        }
+        dt * dt * dt * s3
+    } else {
+        (2.0 - (-x).exp() * (x * x + 2.0 * x + 2.0)) / (lambda * lambda * lambda)
+    }
+}
+
 /// Sorted breakpoints of both curves strictly inside (a, b).
 fn breakpoints(a: f64, b: f64, h: &PiecewiseConstant, f: &PiecewiseConstant, out: &mut Vec<f64>) {
     out.clear();
@@ -283,6 +304,69 @@ impl LastPieceLegs {
         }
     }
 
+    /// The legs with hazard `h` from `s0` on, and their derivatives in `h`.
+    ///
+    /// # Formula
+    /// On a sub-interval [a, a + Δ] after `s0`, with `g = a - s0`,
+    /// `σ = a - period start`, `DS = exp(-(H(a) + F(a)))`, and
+    /// `dE1/dλ = -E2`, `dE2/dλ = -E3`:
+    /// ```text
+    /// d(h DS E1)/dh           = DS (E1 (1 - h g) - h E2)
+    /// d(h DS (σ E1 + E2))/dh  = DS ((σ E1 + E2)(1 - h g) - h (σ E2 + E3))
+    /// d S(end)/dh             = -(end - s0) S(end)
+    /// ```
+    pub(crate) fn legs_and_slope(&self, h: f64) -> (IndexLegs, IndexLegs) {
+        let integral = |t: f64| self.integral_s0 + h * (t - self.s0);
+        let (mut default_pv, mut annuity) = (0.0, 0.0);
+        let (mut d_default_pv, mut d_annuity) = (0.0, 0.0);
+        for p in &self.periods {
+            let (mut accrued, mut d_accrued) = (0.0, 0.0);
+            for piece in &p.pieces {
+                match *piece {
+                    Piece::Fixed(None) => {}
+                    Piece::Fixed(Some((pv, acc))) => {
+                        default_pv += pv;
+                        accrued += acc;
+                    }
+                    Piece::Solved {
+                        a,
+                        dt,
+                        since_start,
+                        fwd,
+                        fwd_integral,
+                    } => {
+                        let lambda = h + fwd;
+                        let ds = (-(integral(a) + fwd_integral)).exp();
+                        let (e1, e2) = exp_moments(lambda, dt);
+                        let e3 = exp_moment3(lambda, dt);
+                        let moved = 1.0 - h * (a - self.s0);
+                        if h != 0.0 {
+                            default_pv += h * ds * e1;
+                            accrued += h * ds * (since_start * e1 + e2);
+                        }
+                        d_default_pv += ds * (e1 * moved - h * e2);
+                        d_accrued +=
+                            ds * ((since_start * e1 + e2) * moved - h * (since_start * e2 + e3));
+                    }
+                }
+            }
+            let survival_end = (-integral(p.t_end)).exp();
+            annuity += p.accrual_df * survival_end + accrued * 365.0 / 360.0;
+            d_annuity +=
+                p.accrual_df * (-(p.t_end - self.s0) * survival_end) + d_accrued * 365.0 / 360.0;
+        }
+        (
+            IndexLegs {
+                protection: (1.0 - self.recovery) * default_pv,
+                annuity,
+            },
+            IndexLegs {
+                protection: (1.0 - self.recovery) * d_default_pv,
+                annuity: d_annuity,
+            },
+        )
+    }
+
     /// The legs with hazard `h` from `s0` on.
     pub(crate) fn legs(&self, h: f64) -> IndexLegs {
         // The hazard integral at t >= s0, as PiecewiseConstant::integral
@@ -329,6 +413,70 @@ impl LastPieceLegs {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    /// The slope of [`LastPieceLegs::legs_and_slope`] against a central
+    /// difference of its legs, with a solved knot before the segment and a
+    /// forward curve with breakpoints; its legs are [`LastPieceLegs::legs`]'s.
+    #[test]
+    fn last_piece_slope_matches_a_central_difference() {
+        use crate::curve::DiscountCurve;
+        use chrono::NaiveDate;
+        let trade = NaiveDate::from_ymd_opt(2026, 6, 18).expect("date");
+        let s = Schedule::new(trade, NaiveDate::from_ymd_opt(2033, 6, 20).expect("date"));
+        let pillar = |y: i32, rate: f64| crate::market::ZeroPillar {
+            date: NaiveDate::from_ymd_opt(y, 6, 18).expect("date"),
+            rate,
+            line: 0,
+        };
+        let zeros = [pillar(2027, 0.02), pillar(2029, 0.025), pillar(2032, 0.03)];
+        let discount = DiscountCurve::from_zero_pillars(trade, &zeros, "test").expect("curve");
+        let s0 = 3.0;
+        let knot = s.protection_end_time();
+        let curve = PiecewiseConstant::new(vec![s0, knot], vec![0.012, 0.0, 0.0]);
+        let split = s.periods.partition_point(|p| p.t_end <= s0);
+        let plan = LastPieceLegs::new(&s, &discount, &curve, s0, 0.4, split..s.periods.len());
+        for h in [0.0, 0.004, 0.02, 0.3, 2.0] {
+            let (legs, slope) = plan.legs_and_slope(h);
+            assert_eq!(legs, plan.legs(h), "{h}");
+            let step = 1e-6 * h.max(1e-3);
+            let (up, down) = (plan.legs(h + step), plan.legs((h - step).max(0.0)));
+            let span = h + step - (h - step).max(0.0);
+            let fd_p = (up.protection - down.protection) / span;
+            let fd_a = (up.annuity - down.annuity) / span;
+            assert!(
+                (fd_p - slope.protection).abs() < 1e-7 * (1.0 + fd_p.abs()),
+                "{h}: {fd_p} vs {}",
+                slope.protection
+            );
+            assert!(
+                (fd_a - slope.annuity).abs() < 1e-7 * (1.0 + fd_a.abs()),
+                "{h}: {fd_a} vs {}",
+                slope.annuity
+            );
+        }
+    }
+
+    /// E3 by its series and in closed form meet around the switch, and
+    /// match a midpoint rule.
+    #[test]
+    fn third_moment_series_and_closed_form_meet() {
+        for &(l, dt) in &[
+            (0.05, 0.25),
+            (2.0, 0.25),
+            (1.9, 0.25),
+            (2.1, 0.25),
+            (5.0, 0.3),
+        ] {
+            let n = 20000;
+            let mut i3 = 0.0;
+            for k in 0..n {
+                let t = (k as f64 + 0.5) * dt / n as f64;
+                i3 += t * t * (-l * t).exp() * dt / n as f64;
+            }
+            let e3 = exp_moment3(l, dt);
+            assert!((e3 - i3).abs() < 1e-8 * e3, "{l} {dt}: {e3} vs {i3}");
+        }
+    }
 
     #[test]
     fn series_and_closed_form_meet() {

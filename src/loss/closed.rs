@@ -12,7 +12,9 @@
 
 use super::{edge_drho, edge_value, Cap, Correlation, Expectation, Horizon};
 use crate::math::bvn::Tails;
-use crate::math::normal::pdf;
+use crate::math::erfc;
+use crate::math::exp::{exp, exp_in_place};
+use crate::math::normal::INV_SQRT_2PI;
 use std::f64::consts::FRAC_1_SQRT_2;
 
 /// `E[min(p(Z), k)]` by the closed form.
@@ -110,52 +112,43 @@ pub fn value_at(h: &Horizon, cap: &Cap, corr: &Correlation) -> f64 {
 /// ```
 #[inline]
 pub fn expectation_at(h: &Horizon, cap: &Cap, corr: &Correlation) -> Expectation {
-    match kink(h, cap, corr) {
-        Err(edge) => edge,
-        Ok(k) => finish(corr.bvn.cdf_with(h.c, -k.a, &k.tails), &k, cap, corr),
-    }
-}
-
-/// One horizon's kink `A`, `N(A)`, and the bivariate normal's tails.
-#[derive(Clone, Copy)]
-struct Kink {
-    a: f64,
-    n_a: f64,
-    tails: Tails,
-}
-
-/// The kink of a horizon with an integral to do, or the edge value.
-#[inline]
-fn kink(h: &Horizon, cap: &Cap, corr: &Correlation) -> Result<Kink, Expectation> {
     if let Some(value) = edge_value(h, cap, corr.rho) {
         let drho = edge_drho(h, cap, corr.rho).unwrap_or(0.0);
-        return Err(Expectation { value, drho });
+        return Expectation { value, drho };
     }
     let a = (h.c - corr.s1 * cap.g) / corr.sr;
+    // Every exponential of this horizon in one SIMD batch: the bivariate
+    // normal's node sum, phi(A), and erfc(|A| / sqrt 2)'s two; padded with
+    // zeros to whole lanes.
+    let m = if corr.bvn.needs_nodes(h.c, -a) {
+        corr.bvn.exponentials()
+    } else {
+        0
+    };
+    let mut e = [0.0; 48];
+    if m > 0 {
+        corr.bvn.cdf_exponents(h.c, -a, &mut e[..m]);
+    }
+    let tail = erfc::prepare(a.abs() * FRAC_1_SQRT_2);
+    let [t0, t1] = tail.exponents();
+    (e[m], e[m + 1], e[m + 2]) = (-0.5 * a * a, t0, t1);
+    let used = (m + 3).next_multiple_of(4);
+    exp_in_place(&mut e[..used]);
     // N(-|A|) directly; N(|A|) as its complement.
-    let small = 0.5 * libm::erfc(a.abs() * FRAC_1_SQRT_2);
+    let small = 0.5 * tail.finish([e[m + 1], e[m + 2]]);
     let (n_a, n_minus_a) = if a >= 0.0 {
         (1.0 - small, small)
     } else {
         (small, 1.0 - small)
     };
-    Ok(Kink {
-        a,
-        n_a,
-        tails: Tails {
-            h: h.n_c.0,
-            minus_h: h.n_c.1,
-            k: n_minus_a,
-            minus_k: n_a,
-        },
-    })
-}
-
-/// The expectation from `Phi2(c, -A; -sqrt(rho))`.
-#[inline]
-fn finish(phi2: f64, k: &Kink, cap: &Cap, corr: &Correlation) -> Expectation {
-    let value = phi2 + cap.k * k.n_a;
-    let num = pdf(k.a) * cap.phi_g;
+    let tails = Tails {
+        h: h.n_c.0,
+        minus_h: h.n_c.1,
+        k: n_minus_a,
+        minus_k: n_a,
+    };
+    let value = corr.bvn.cdf_from(h.c, -a, &e[..m], &tails) + cap.k * n_a;
+    let num = INV_SQRT_2PI * e[m] * cap.phi_g;
     let drho = if num == 0.0 {
         0.0
     } else {
@@ -224,7 +217,7 @@ fn drho_roots(h: &Horizon, cap: &Cap, rho: f64, sr: f64, s1: f64) -> f64 {
         return d;
     }
     let a = (h.c - s1 * cap.g) / sr;
-    let num = pdf(a) * cap.phi_g;
+    let num = INV_SQRT_2PI * exp(-0.5 * a * a) * cap.phi_g;
     if num == 0.0 {
         return 0.0;
     }

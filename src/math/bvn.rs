@@ -49,6 +49,7 @@
 //! - R. L. Plackett, "A reduction formula for normal multivariate
 //!   integrals", Biometrika 41 (1954) 351-360.
 
+use super::erfc;
 use super::exp::exp_in_place;
 use super::normal::cdf as norm_cdf;
 
@@ -368,26 +369,100 @@ impl Bvn {
         }
     }
 
+    /// Whether `Phi2(h, k; r)` takes the node sum (no NaN, no bound beyond
+    /// [`FAR`]); when not, [`Bvn::cdf_from`] reads no exponential.
+    #[inline]
+    pub(crate) fn needs_nodes(&self, h: f64, k: f64) -> bool {
+        !(h.is_nan() || k.is_nan() || h.abs() >= FAR || k.abs() >= FAR)
+    }
+
+    /// How many exponentials [`Bvn::cdf_from`] takes: one per node in the
+    /// angle form; in the series form two per node, two outside the sum and
+    /// two of the normal CDF in it; none otherwise.
+    pub(crate) fn exponentials(&self) -> usize {
+        match self.form {
+            Form::Angle => self.len,
+            Form::Series => 2 * self.len + 4,
+            Form::Independent | Form::Degenerate => 0,
+        }
+    }
+
+    /// The exponents of the node sum of `Phi2(h, k; r)`, into `out`
+    /// ([`Self::exponentials`] of them; any values where [`Bvn::cdf_from`]
+    /// will not need them). The caller takes their exponentials, in one
+    /// batch with others of its own, and hands them to [`Bvn::cdf_from`].
+    #[inline]
+    pub(crate) fn cdf_exponents(&self, h: f64, k: f64, out: &mut [f64]) {
+        self.node_exponents(-h, -k, out);
+    }
+
+    /// `Phi2(h, k; r)` from the exponentials of [`Bvn::cdf_exponents`]:
+    /// [`Bvn::cdf_with`] to the bit.
+    #[inline]
+    pub(crate) fn cdf_from(&self, h: f64, k: f64, e: &[f64], tails: &Tails) -> f64 {
+        match self.edge(h, k, tails) {
+            Some(v) => v,
+            None => self.upper_from(-h, -k, e, &Negated(tails)).clamp(0.0, 1.0),
+        }
+    }
+
     /// `P(X > h, Y > k)` for `|h|, |k| < FAR`; Genz's BVND. `n` gives the
     /// normal CDF at `h`, `-h`, `k`, `-k` of these arguments.
     #[inline]
     fn upper(&self, h: f64, k: f64, n: &impl NormalAt) -> f64 {
+        let mut e = [0.0; 44];
+        let e = &mut e[..self.exponentials()];
+        self.node_exponents(h, k, e);
+        exp_in_place(e);
+        self.upper_from(h, k, e, n)
+    }
+
+    /// The exponents of [`Self::upper`]'s node sum at `(h, k)`.
+    #[inline]
+    fn node_exponents(&self, h: f64, k: f64, out: &mut [f64]) {
+        let hk = h * k;
+        let len = self.len;
+        match self.form {
+            Form::Angle => {
+                let hs = 0.5 * (h * h + k * k);
+                for ((e, p), q) in out[..len].iter_mut().zip(&self.p).zip(&self.q) {
+                    *e = (p * hk - hs) * q;
+                }
+            }
+            Form::Series => {
+                // |r| >= 0.925: reflect r < 0 onto r > 0 through k -> -k.
+                let (k, hk) = if self.r < 0.0 { (-k, -hk) } else { (k, hk) };
+                let bs = (h - k) * (h - k);
+                let (nodes, outside) = out[..2 * len + 4].split_at_mut(2 * len);
+                let (e1, e2) = nodes.split_at_mut(len);
+                for (((e1, e2), p), t) in e1.iter_mut().zip(e2).zip(&self.p).zip(&self.t) {
+                    *e1 = -0.5 * (bs * p + hk);
+                    *e2 = -hk * t;
+                }
+                let a_s = self.scale;
+                let tail = erfc::prepare(series_tail_argument(bs, a_s));
+                let [t0, t1] = if erfc::exponentials_needed(&tail) {
+                    tail.exponents()
+                } else {
+                    [0.0; 2]
+                };
+                outside.copy_from_slice(&[-0.5 * (bs / a_s + hk), -0.5 * hk, t0, t1]);
+            }
+            Form::Independent | Form::Degenerate => {}
+        }
+    }
+
+    /// [`Self::upper`] from the exponentials of its node exponents.
+    #[inline]
+    fn upper_from(&self, h: f64, k: f64, e: &[f64], n: &impl NormalAt) -> f64 {
         let hk = h * k;
         let len = self.len;
         match self.form {
             Form::Independent => return n.minus_h() * n.minus_k(),
             Form::Angle => {
-                // The exponentials first, in SIMD lanes; then the weighted
-                // sum in node order.
-                let hs = 0.5 * (h * h + k * k);
-                let mut e = [0.0; 20];
-                let e = &mut e[..len];
-                for ((e, p), q) in e.iter_mut().zip(&self.p[..len]).zip(&self.q[..len]) {
-                    *e = (p * hk - hs) * q;
-                }
-                exp_in_place(e);
+                // The weighted sum in node order.
                 let mut sum = 0.0;
-                for (w, e) in self.w[..len].iter().zip(e.iter()) {
+                for (w, e) in self.w[..len].iter().zip(&e[..len]) {
                     sum += w * e;
                 }
                 return sum * self.scale + n.minus_h() * n.minus_k();
@@ -410,29 +485,24 @@ impl Bvn {
             let bs = (h - k) * (h - k);
             let c = (4.0 - hk) / 8.0;
             let d = (12.0 - hk) / 16.0;
+            let outside = &e[2 * len..2 * len + 4];
             bvn = a
-                * (-0.5 * (bs / a_s + hk)).exp()
+                * outside[0]
                 * (1.0 - c * (bs - a_s) * (1.0 - d * bs / 5.0) / 3.0 + c * d * a_s * a_s / 5.0);
             if hk > -160.0 {
                 let b = bs.sqrt();
-                bvn -= (-0.5 * hk).exp()
+                // N(-b / a) = erfc(b / (a sqrt 2)) / 2, its exponentials taken
+                // with the nodes'.
+                let tail = erfc::finish_at(series_tail_argument(bs, a_s), [outside[2], outside[3]]);
+                bvn -= outside[1]
                     * TWO_PI.sqrt()
-                    * norm_cdf(-b / a)
+                    * (0.5 * tail)
                     * b
                     * (1.0 - c * bs * (1.0 - d * bs / 5.0) / 3.0);
             }
             // Both halves of the rule in Genz's second form:
             // exp(-(bs/xs + hk)/2) (exp(-hk (1-rs)/(2(1+rs))) / rs - (1 + c xs (1 + d xs)))
-            // with the exponentials of every node in one batch.
-            let mut e = [0.0; 40];
-            let (e1, e2) = e.split_at_mut(len);
-            let e2 = &mut e2[..len];
-            for (((e1, e2), p), t) in e1.iter_mut().zip(e2.iter_mut()).zip(&self.p).zip(&self.t) {
-                *e1 = -0.5 * (bs * p + hk);
-                *e2 = -hk * t;
-            }
-            exp_in_place(&mut e[..2 * len]);
-            let (e1, e2) = e.split_at(len);
+            let (e1, e2) = e[..2 * len].split_at(len);
             for j in 0..len {
                 let xs = self.q[j];
                 bvn += self.w[j] * e1[j] * (e2[j] * self.u[j] - (1.0 + c * xs * (1.0 + d * xs)));
@@ -453,6 +523,14 @@ impl Bvn {
             bvn
         }
     }
+}
+
+/// The argument of `erfc` in the series form's `N(-b / a)`, `b = |h - k|`,
+/// `a = sqrt(1 - r²)`: `b / a / sqrt 2` (as `N(x) = erfc(-x / sqrt 2) / 2`
+/// forms it).
+#[inline]
+fn series_tail_argument(bs: f64, a_s: f64) -> f64 {
+    -(-bs.sqrt() / a_s.sqrt()) * std::f64::consts::FRAC_1_SQRT_2
 }
 
 /// The normal CDF at `h`, `-h`, `k` and `-k`, for [`Bvn::cdf_with`].
