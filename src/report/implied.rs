@@ -43,14 +43,15 @@
 
 use super::curve::{quote_label, CurvePillar};
 use super::price::bounds_label;
-use super::{pools_for_all_dates, QuotedTranche};
-use crate::curve::MarketOptions;
+use super::{all_or_every_error, QuotedTranche};
+use crate::curve::{MarketOptions, Pool};
 use crate::error::Result;
 use crate::flags::Flag;
 use crate::market::Snapshot;
 use crate::output::{csv_num, fixed, fixed_or, pct, sci, wrap, Report, Table};
 use crate::solve::chain::{implied_date, BaseOutcome, DateImplied, TrancheImplied};
 use crate::solve::compound::{RHO_MAX, RHO_MIN};
+use rayon::prelude::*;
 use serde::Serialize;
 
 /// One tranche's implied correlations.
@@ -181,14 +182,44 @@ impl ImpliedReport {
 
 /// Implied correlations of every tranche of every date.
 ///
+/// Dates run in parallel (rayon, on the current thread pool); the report
+/// is in date order and the same, to the byte, whatever the number of
+/// threads.
+///
 /// # Errors
-/// Curve errors of any date (unfittable index quotes, bad zero pillars).
+/// Curve errors of any date (unfittable index quotes, bad zero pillars),
+/// all of them together; else the first date's pricing error.
 /// Tranches with no solution are not errors: they are flagged in the report.
 pub fn build(snapshot: &Snapshot, opts: &MarketOptions) -> Result<ImpliedReport> {
-    let mut dates = Vec::with_capacity(snapshot.dates.len());
-    for (md, pool) in pools_for_all_dates(snapshot, opts)? {
-        dates.push(ImpliedDate::from_implied(&implied_date(&md, pool)?));
-    }
+    build_with_progress(snapshot, opts, &|| {})
+}
+
+/// [`build`], calling `done` once as each date is finished (from whichever
+/// thread finished it), so a front end can show progress. The library
+/// prints nothing itself.
+///
+/// # Errors
+/// As [`build`].
+pub fn build_with_progress(
+    snapshot: &Snapshot,
+    opts: &MarketOptions,
+    done: &(dyn Fn() + Sync),
+) -> Result<ImpliedReport> {
+    // Each date on its own: bootstrap, then every compound root and the
+    // base chain. A curve error is kept apart from a pricing error so that
+    // the errors come out as they did date by date: every curve error first.
+    let per_date: Vec<Result<Result<ImpliedDate>>> = snapshot
+        .dates
+        .par_iter()
+        .map(|md| {
+            let out = Pool::build(md, opts, &snapshot.path)
+                .map(|pool| implied_date(md, pool).map(|d| ImpliedDate::from_implied(&d)));
+            done();
+            out
+        })
+        .collect();
+    let priced = all_or_every_error(per_date)?;
+    let dates = priced.into_iter().collect::<Result<Vec<_>>>()?;
     Ok(ImpliedReport { dates })
 }
 

@@ -17,11 +17,13 @@ use crate::curve::{MarketOptions, Pool};
 use crate::error::{Error, Result};
 use crate::market::{MarketDate, Snapshot, TrancheQuote};
 use crate::output::pct;
+use rayon::prelude::*;
 use serde::Serialize;
 
 /// Builds the index pool (curves) of every date of a snapshot, collecting
 /// every date's error into one [`Error`] so a history shows all its bad
-/// dates at once.
+/// dates at once. Dates are bootstrapped in parallel (rayon); the result is
+/// in date order whatever the number of threads.
 ///
 /// # Errors
 /// The first error's kind, with the problems of every failing date.
@@ -29,11 +31,26 @@ pub fn pools_for_all_dates(
     snapshot: &Snapshot,
     opts: &MarketOptions,
 ) -> Result<Vec<(MarketDate, Pool)>> {
-    let mut out = Vec::with_capacity(snapshot.dates.len());
+    let pools: Vec<Result<Pool>> = snapshot
+        .dates
+        .par_iter()
+        .map(|md| Pool::build(md, opts, &snapshot.path))
+        .collect();
+    let pools = all_or_every_error(pools)?;
+    Ok(snapshot.dates.iter().cloned().zip(pools).collect())
+}
+
+/// Every value, or one error with the problems of every failure (the
+/// first failure's kind), in order.
+///
+/// # Errors
+/// As described.
+pub(crate) fn all_or_every_error<T>(results: Vec<Result<T>>) -> Result<Vec<T>> {
+    let mut out = Vec::with_capacity(results.len());
     let mut failure: Option<Error> = None;
-    for md in &snapshot.dates {
-        match Pool::build(md, opts, &snapshot.path) {
-            Ok(c) => out.push((md.clone(), c)),
+    for r in results {
+        match r {
+            Ok(v) => out.push(v),
             Err(e) => match &mut failure {
                 None => failure = Some(e),
                 Some(f) => f.problems.extend(e.problems),

@@ -28,3 +28,6 @@ for h in hgx-default-rates lhy-default-counts; do
 done
 run "realworld-hgx-against" realworld market-samples/hgx-default-rates.csv --against market-samples/hgx-2026-06-18.csv
 run "realworld-lhy-against" realworld market-samples/lhy-default-counts.csv --against market-samples/lhy-2026-06-18.csv
+# The KCX sample's implied output, recorded before the speed work (four
+# maturities, ten-year tranches).
+run "implied-kcx-2026-06-18" implied market-samples/kcx-2026-06-18.csv

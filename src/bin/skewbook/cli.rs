@@ -213,6 +213,10 @@ pub struct PriceArgs {
 pub struct ImpliedArgs {
     #[command(flatten)]
     pub market: MarketArgs,
+    /// No progress bar (one is drawn on standard error only when it is a
+    /// terminal, outside CI, for more than 20 dates).
+    #[arg(long, short)]
+    pub quiet: bool,
 }
 
 /// `skewbook loss`.
