@@ -117,15 +117,33 @@ pub fn expectation_at(h: &Horizon, cap: &Cap, corr: &Correlation) -> Expectation
         return Expectation { value, drho };
     }
     let a = (h.c - corr.s1 * cap.g) / corr.sr;
-    // Every exponential of this horizon in one SIMD batch: the bivariate
-    // normal's node sum, phi(A), and erfc(|A| / sqrt 2)'s two; padded with
-    // zeros to whole lanes.
     let m = if corr.bvn.needs_nodes(h.c, -a) {
         corr.bvn.exponentials()
     } else {
         0
     };
-    let mut e = [0.0; 48];
+    // A buffer just long enough (the angle form's fits the small one).
+    if m + 3 <= 24 {
+        with_exponentials(h, cap, corr, a, m, &mut [0.0; 24])
+    } else {
+        with_exponentials(h, cap, corr, a, m, &mut [0.0; 48])
+    }
+}
+
+/// [`expectation_at`] away from the edges, with a scratch buffer `e` for
+/// the horizon's exponentials (`m` of the node sum, then three).
+#[inline(always)]
+fn with_exponentials(
+    h: &Horizon,
+    cap: &Cap,
+    corr: &Correlation,
+    a: f64,
+    m: usize,
+    e: &mut [f64],
+) -> Expectation {
+    // Every exponential of this horizon in one SIMD batch: the bivariate
+    // normal's node sum, phi(A), and erfc(|A| / sqrt 2)'s two; padded with
+    // zeros to whole lanes.
     if m > 0 {
         corr.bvn.cdf_exponents(h.c, -a, &mut e[..m]);
     }

@@ -387,7 +387,23 @@ impl BaseTranche {
     /// ```
     #[inline]
     pub fn closed_form(&self, h: &Horizon, corr: &Correlation) -> BaseExpectation {
-        self.assemble(h, |cap| closed::expectation_at(h, cap, corr))
+        self.assemble_sides(
+            h,
+            || closed::expectation_at(h, &self.loss_cap, corr),
+            || {
+                // A cap at or above 1 caps nothing: E[min(p, k)] = PD for
+                // every rho (the edge case of the closed form, without its
+                // checks). So for every K up to 1 - R on the recovery side.
+                if self.recovery_cap.k >= 1.0 {
+                    Expectation {
+                        value: if h.pd <= 0.0 { 0.0 } else { h.pd },
+                        drho: 0.0,
+                    }
+                } else {
+                    closed::expectation_at(h, &self.recovery_cap, corr)
+                }
+            },
+        )
     }
 
     #[inline]
