@@ -226,3 +226,26 @@ pub fn significant(x: f64, digits: usize) -> String {
         format!("{}e{exponent}", trim(mantissa))
     }
 }
+
+/// Every value, or one error with the problems of every failure (the first
+/// failure's kind), in order: how a history reports all its bad dates at once.
+///
+/// # Errors
+/// As described.
+pub fn collect_all<T>(results: Vec<Result<T>>) -> Result<Vec<T>> {
+    let mut out = Vec::with_capacity(results.len());
+    let mut failure: Option<Error> = None;
+    for r in results {
+        match r {
+            Ok(v) => out.push(v),
+            Err(e) => match &mut failure {
+                None => failure = Some(e),
+                Some(f) => f.problems.extend(e.problems),
+            },
+        }
+    }
+    match failure {
+        Some(e) => Err(e),
+        None => Ok(out),
+    }
+}

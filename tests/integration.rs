@@ -34,6 +34,9 @@ mod interp;
 mod mistakes;
 /// Sample outputs against the fixtures recorded before a refactoring.
 mod outputs;
+/// Dates in parallel: the same bytes on one thread and on four, progress
+/// once per date, every bad date reported in order.
+mod parallel;
 /// Real-world calibration: estimators against an independent Python
 /// implementation, coverage by simulation, the `loss` and `realworld` commands.
 mod realworld;

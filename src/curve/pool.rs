@@ -216,7 +216,8 @@ impl Pool {
 
 /// Builds the index pool (curves) of every date of a snapshot, collecting
 /// every date's error into one [`Error`] so a history shows all its bad
-/// dates at once.
+/// dates at once. Dates are bootstrapped in parallel (rayon); the result is
+/// in date order whatever the number of threads.
 ///
 /// # Errors
 /// The first error's kind, with the problems of every failing date.
@@ -224,19 +225,12 @@ pub fn pools_for_all_dates(
     snapshot: &Snapshot,
     opts: &MarketOptions,
 ) -> Result<Vec<(MarketDate, Pool)>> {
-    let mut out = Vec::with_capacity(snapshot.dates.len());
-    let mut failure: Option<Error> = None;
-    for md in &snapshot.dates {
-        match Pool::build(md, opts, &snapshot.path) {
-            Ok(c) => out.push((md.clone(), c)),
-            Err(e) => match &mut failure {
-                None => failure = Some(e),
-                Some(f) => f.problems.extend(e.problems),
-            },
-        }
-    }
-    match failure {
-        Some(e) => Err(e),
-        None => Ok(out),
-    }
+    use rayon::prelude::*;
+    let pools: Vec<Result<Pool>> = snapshot
+        .dates
+        .par_iter()
+        .map(|md| Pool::build(md, opts, &snapshot.path))
+        .collect();
+    let pools = crate::error::collect_all(pools)?;
+    Ok(snapshot.dates.iter().cloned().zip(pools).collect())
 }

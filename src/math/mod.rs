@@ -3,6 +3,9 @@
 //!
 //! - [`normal`]: the normal CDF, density and inverse;
 //! - [`bvn`]: the bivariate normal CDF (Genz 2004);
+//! - [`exp`]: a branch-free exponential whose loops vectorise (the
+//!   bivariate normal's node sums), and [`erfc`], the complementary error
+//!   function around its exponentials so they join such a batch;
 //! - [`root`]: the stopping rule ([`root::Tolerance`]) kept apart from the
 //!   solvers (Brent, bracketed Newton), and what a solve returns;
 //! - [`interp`]: knot interpolation (linear, monotone cubic), isotonic
@@ -12,6 +15,8 @@
 //!   base expected loss.
 
 pub mod bvn;
+pub mod erfc;
+pub mod exp;
 pub mod interp;
 pub mod monotone_convex;
 pub mod normal;

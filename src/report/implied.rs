@@ -73,9 +73,10 @@
 
 use super::curve::{quote_label, CurvePillar};
 use super::price::bounds_label;
-use super::{pools_for_all_dates, QuotedTranche};
+use super::QuotedTranche;
 use crate::consistency::{index_gap, DEFAULT_TOLERANCE_BP};
-use crate::curve::MarketOptions;
+use crate::curve::{MarketOptions, Pool};
+use crate::error::collect_all;
 use crate::error::Result;
 use crate::flags::Flag;
 use crate::market::Quote;
@@ -87,6 +88,7 @@ use crate::solve::chain::{
     implied_date, near_limit, BaseOutcome, DateImplied, TrancheImplied, NEAR_LIMIT,
 };
 use crate::solve::compound::{RHO_MAX, RHO_MIN};
+use rayon::prelude::*;
 use serde::Serialize;
 
 /// One tranche's implied correlations.
@@ -531,8 +533,13 @@ impl RunSummary {
 
 /// Implied correlations of every tranche of every date.
 ///
+/// Dates run in parallel (rayon, on the current thread pool); the report
+/// is in date order and the same, to the byte, whatever the number of
+/// threads.
+///
 /// # Errors
-/// Curve errors of any date (unfittable index quotes, bad zero pillars).
+/// Curve errors of any date (unfittable index quotes, bad zero pillars),
+/// all of them together; else the first date's pricing error.
 /// Tranches with no solution are not errors: they are flagged in the report.
 pub fn build(snapshot: &Snapshot, opts: &MarketOptions) -> Result<ImpliedReport> {
     build_with(snapshot, opts, &ImpliedOptions::default())
@@ -548,6 +555,22 @@ pub fn build_with(
     opts: &MarketOptions,
     implied: &ImpliedOptions,
 ) -> Result<ImpliedReport> {
+    build_with_progress(snapshot, opts, implied, &|| {})
+}
+
+/// [`build_with`], calling `done` once as each date is finished (from
+/// whichever thread finished it), so a front end can show progress. The
+/// library prints nothing itself. Dates run in parallel (rayon) and come
+/// out in date order, whatever the number of threads.
+///
+/// # Errors
+/// As [`build_with`].
+pub fn build_with_progress(
+    snapshot: &Snapshot,
+    opts: &MarketOptions,
+    implied: &ImpliedOptions,
+    done: &(dyn Fn() + Sync),
+) -> Result<ImpliedReport> {
     let tol = implied.index_tolerance_bp;
     if !(tol.is_finite() && tol >= 0.0) {
         return Err(crate::Error::msg(
@@ -558,13 +581,22 @@ pub fn build_with(
             ),
         ));
     }
-    let mut dates = Vec::with_capacity(snapshot.dates.len());
-    for (md, pool) in pools_for_all_dates(snapshot, opts)? {
-        dates.push(ImpliedDate::with_options(
-            &implied_date(&md, pool)?,
-            implied,
-        )?);
-    }
+    // Each date on its own: bootstrap, then every compound root and the
+    // base chain. A curve error is kept apart from a pricing error so that
+    // the errors come out as they did date by date: every curve error first.
+    let per_date: Vec<Result<Result<ImpliedDate>>> = snapshot
+        .dates
+        .par_iter()
+        .map(|md| {
+            let out = Pool::build(md, opts, &snapshot.path).map(|pool| {
+                implied_date(md, pool).and_then(|d| ImpliedDate::with_options(&d, implied))
+            });
+            done();
+            out
+        })
+        .collect();
+    let priced = collect_all(per_date)?;
+    let dates = priced.into_iter().collect::<Result<Vec<_>>>()?;
     Ok(ImpliedReport { dates })
 }
 

@@ -5,11 +5,12 @@
 //! [`implied_date`] is pure (no printing, no shared state), so dates can run
 //! in parallel; reports only format what it returns.
 
-use super::base::{base_correlation_from_scan, BaseSolve, Side};
+use super::base::{base_correlation_with_legs, BaseSolve, Side};
 use super::compound::{compound_roots_from_scan, scan_grid, CompoundSolve, RHO_MAX, RHO_MIN};
 use crate::curve::Pool;
 use crate::error::Result;
 use crate::flags::Flag;
+use crate::loss::Correlation;
 use crate::market::{tiles_from_zero, MarketDate, TrancheQuote};
 use crate::tranche::{BaseLegs, Tranche, TrancheSchedule, TrancheValuer};
 use chrono::NaiveDate;
@@ -222,13 +223,17 @@ pub fn implied_maturity(
     let tiles = tiles_from_zero(quotes);
     // Each bound's base-tranche legs on the scan grid, shared by the
     // tranches above and below it (compound scans and base brackets).
-    let grid = scan_grid();
+    // The bivariate normal's rule at each scan correlation, built once.
+    let grid: Vec<Correlation> = scan_grid().iter().map(|&r| Correlation::new(r)).collect();
     let mut scans: Vec<(f64, Vec<BaseLegs>)> = Vec::new();
     for t in quotes {
         for k in [t.attach, t.detach] {
             if !scans.iter().any(|(b, _)| *b == k) {
                 let base = schedule.base(k)?;
-                let legs = grid.iter().map(|&r| schedule.base_legs(&base, r)).collect();
+                let legs = grid
+                    .iter()
+                    .map(|r| schedule.base_legs_at(&base, r))
+                    .collect();
                 scans.push((k, legs));
             }
         }
@@ -245,8 +250,10 @@ pub fn implied_maturity(
         broken: None,
         tiles,
     };
-    // Base correlation at the previous detachment; None once the chain breaks.
-    let mut chain: Option<f64> = Some(0.0);
+    // Base correlation at the previous detachment and the legs of the base
+    // tranche up to it there (the next tranche's lower base, when the bounds
+    // meet exactly); None once the chain breaks.
+    let mut chain: Option<(f64, f64, BaseLegs)> = Some((0.0, 0.0, BaseLegs::default()));
     let mut out = Vec::with_capacity(quotes.len());
     for t in quotes {
         let tranche = Tranche::new(t.attach, t.detach)?;
@@ -265,8 +272,10 @@ pub fn implied_maturity(
             .collect();
         let comp = compound_roots_from_scan(&v, &flat);
         let mut flags = compound_flags(&comp);
-        let reprice_at = |rho_a: f64, rho_d: f64| {
-            let legs = v.legs(rho_a, rho_d);
+        // The quote repriced from the lower base's legs at rho_A and the
+        // upper base's at rho_D.
+        let reprice = |lower: &BaseLegs, upper: &BaseLegs| {
+            let legs = v.combine(lower, upper, false);
             Repriced {
                 error: v
                     .model_quote(&legs)
@@ -274,19 +283,27 @@ pub fn implied_maturity(
                 expected_loss: legs.expected_loss,
             }
         };
-        let (base, repriced) = match chain {
+        let below = chain.map(|(detach, rho_a, legs)| {
+            let lower = if detach == t.attach {
+                legs
+            } else {
+                v.lower_legs(rho_a)
+            };
+            (rho_a, lower)
+        });
+        let (base, repriced) = match below {
             _ if !tiles => (BaseOutcome::NotTiled, None),
             None => {
                 let at = curve.broken.as_ref().map_or(tranche, |b| b.at);
                 (BaseOutcome::ChainBroken { at }, None)
             }
-            Some(rho_a) if tranche.is_top() => (
+            Some((rho_a, lower)) if tranche.is_top() => (
                 BaseOutcome::Top { rho_attach: rho_a },
-                Some(reprice_at(rho_a, rho_a)),
+                Some(reprice(&lower, &v.upper_legs(rho_a))),
             ),
-            Some(rho_a) => {
-                let lower = v.lower_legs(rho_a);
-                let outcome = match base_correlation_from_scan(&v, &lower, upper_scan) {
+            Some((rho_a, lower)) => {
+                let (solved, upper) = base_correlation_with_legs(&v, &lower, upper_scan);
+                let outcome = match solved {
                     BaseSolve::Solved(s) => BaseOutcome::Solved {
                         rho_attach: rho_a,
                         rho_detach: s.value,
@@ -296,13 +313,14 @@ pub fn implied_maturity(
                     }
                     BaseSolve::Failed { bracket } => BaseOutcome::SolverFailed { bracket },
                 };
-                if let BaseOutcome::Solved { rho_detach, .. } = outcome {
-                    chain = Some(rho_detach);
+                if let (BaseOutcome::Solved { rho_detach, .. }, Some(upper)) = (&outcome, upper) {
+                    let rho_detach = *rho_detach;
+                    chain = Some((t.detach, rho_detach, upper));
                     curve.knots.push(Knot {
                         detach: t.detach,
                         rho: rho_detach,
                     });
-                    (outcome, Some(reprice_at(rho_a, rho_detach)))
+                    (outcome, Some(reprice(&lower, &upper)))
                 } else {
                     chain = None;
                     curve.broken = Some(ChainBreak {

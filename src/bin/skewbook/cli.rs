@@ -296,6 +296,10 @@ pub struct ImpliedArgs {
         allow_negative_numbers = true
     )]
     pub index_tolerance: f64,
+    /// No progress bar (one is drawn on standard error only when it is a
+    /// terminal, outside CI, for more than 20 dates).
+    #[arg(long, short)]
+    pub quiet: bool,
 }
 
 /// `skewbook loss`.
