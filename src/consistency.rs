@@ -73,16 +73,18 @@ impl IndexGap {
 
 /// The gap between a maturity's tranche quotes and the index curve of
 /// `pool`, or `None` when the tranches do not tile 0-100% with a base
-/// correlation below the top.
+/// correlation below the top (or, which the chain that solved them rules
+/// out, a tranche cannot be priced).
 ///
 /// # Formula
 /// ```text
 /// gap_bp = 10⁴ · (Σ_i W_i (c_i ann_i + u_i DF(ts)) - prot[0, 1]) / ann[0, 1]
 /// ```
-///
-/// # Errors
-/// Only for tranches the library cannot price (the reader rules them out).
-pub fn index_gap(pool: &Pool, m: &MaturityImplied) -> Result<Option<IndexGap>> {
+pub fn index_gap(pool: &Pool, m: &MaturityImplied) -> Option<IndexGap> {
+    gap(pool, m).ok().flatten()
+}
+
+fn gap(pool: &Pool, m: &MaturityImplied) -> Result<Option<IndexGap>> {
     let reaches_top = m
         .tranches
         .last()
@@ -117,4 +119,63 @@ pub fn index_gap(pool: &Pool, m: &MaturityImplied) -> Result<Option<IndexGap>> {
         protection_gap: gap,
         gap_bp: 1e4 * gap / whole.annuity,
     }))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::curve::MarketOptions;
+    use crate::input::snapshot::parse_snapshot;
+    use crate::solve::chain::implied_date;
+
+    fn gaps(rows: &str) -> Vec<Option<IndexGap>> {
+        let text = format!(
+            "date,instrument,maturity,attach_pct,detach_pct,quote_kind,quote,coupon_bp\n\
+             2026-06-18,index,2031-06-20,,,spread_bp,60,\n{rows}"
+        );
+        let snap = parse_snapshot(&text, "t.csv").expect("snapshot");
+        let md = &snap.dates[0];
+        let pool = Pool::build(md, &MarketOptions::default(), "t.csv").expect("pool");
+        let d = implied_date(md, pool).expect("implied");
+        d.maturities.iter().map(|m| index_gap(&d.pool, m)).collect()
+    }
+
+    /// The whole pool alone tiles 0-100%: its gap is its quote minus its
+    /// own par spread (protection / annuity on the schedule), which is the
+    /// model quote the chain reports for it.
+    #[test]
+    fn the_whole_pool_alone_gives_its_quote_minus_its_par_spread() {
+        let text = "date,instrument,maturity,attach_pct,detach_pct,quote_kind,quote,coupon_bp\n\
+                    2026-06-18,index,2031-06-20,,,spread_bp,60,\n\
+                    2026-06-18,tranche,2031-06-20,0,100,spread_bp,70,\n";
+        let snap = parse_snapshot(text, "t.csv").expect("snapshot");
+        let md = &snap.dates[0];
+        let pool = Pool::build(md, &MarketOptions::default(), "t.csv").expect("pool");
+        let d = implied_date(md, pool).expect("implied");
+        let par = d.maturities[0].tranches[0]
+            .whole_pool_quote
+            .expect("a par spread");
+        let g = index_gap(&d.pool, &d.maturities[0]).expect("a gap");
+        assert!((g.gap_bp - (70.0 - par)).abs() < 1e-9, "{} {par}", g.gap_bp);
+        assert!(g.exceeds(1.0) && !g.exceeds(20.0));
+    }
+
+    /// No gap without a tiling that reaches 100%, or with a broken chain.
+    #[test]
+    fn no_gap_without_a_complete_tiling() {
+        let below_top = "2026-06-18,tranche,2031-06-20,0,3,upfront_pct,40,500\n\
+                         2026-06-18,tranche,2031-06-20,3,7,spread_bp,240,\n";
+        assert_eq!(gaps(below_top), [None]);
+        let gap_in_bounds = "2026-06-18,tranche,2031-06-20,0,3,upfront_pct,40,500\n\
+                             2026-06-18,tranche,2031-06-20,7,100,spread_bp,10,\n";
+        assert_eq!(gaps(gap_in_bounds), [None]);
+        // An equity upfront of 99.9% no correlation reaches: the chain
+        // breaks at the bottom.
+        let broken = "2026-06-18,tranche,2031-06-20,0,3,upfront_pct,99.9,500\n\
+                      2026-06-18,tranche,2031-06-20,3,100,spread_bp,10,\n";
+        assert_eq!(gaps(broken), [None]);
+        let whole = "2026-06-18,tranche,2031-06-20,0,3,upfront_pct,40,500\n\
+                     2026-06-18,tranche,2031-06-20,3,100,spread_bp,10,\n";
+        assert!(gaps(whole)[0].is_some());
+    }
 }

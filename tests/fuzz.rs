@@ -25,8 +25,9 @@
 //!
 //! `SKEWBOOK_FUZZ_CASES` sets the number of cases (default
 //! [`DEFAULT_CASES`]) and `SKEWBOOK_FUZZ_SEED` the seed (default
-//! [`SEED`]): `SKEWBOOK_FUZZ_CASES=200000 cargo test --release fuzz` is a
-//! long local run. Failures are collected (up to [`MAX_FAILURES`]) and
+//! [`SEED`]): `SKEWBOOK_FUZZ_CASES=200000 cargo test fuzz` is a long local
+//! run (the test profile is optimised and keeps the debug assertions and
+//! overflow checks that the release profile drops). Failures are collected (up to [`MAX_FAILURES`]) and
 //! printed with the case number and the mutated file, so each can be
 //! replayed.
 

@@ -752,6 +752,62 @@ mod tests {
 
     const NAMES: &[&str] = &["a", "b", "c"];
 
+    /// The problems of reading `text`'s first record as a header.
+    fn header_problems(text: &str) -> (bool, Vec<String>) {
+        let mut problems = Vec::new();
+        let recs = records(text, "f.csv", &mut problems);
+        let read = header("f.csv", &recs[0], NAMES, &mut problems).is_some();
+        (read, problems.iter().map(|p| p.to_string()).collect())
+    }
+
+    #[test]
+    fn a_wrong_delimiter_or_a_data_row_is_one_problem() {
+        let (read, m) = header_problems("a;b;c\n1;2;3\n");
+        assert!(!read);
+        assert_eq!(
+            m,
+            [
+                "f.csv:1: expected comma-separated values, found a header separated by semicolons \
+              (\"a;b;c\"): save or export the file as CSV with commas between cells and points in \
+              numbers"
+            ]
+        );
+        let (read, m) = header_problems("a\tb\tc\n");
+        assert!(
+            !read && m.len() == 1 && m[0].contains("separated by tabs"),
+            "{m:?}"
+        );
+        let (read, m) = header_problems("2026-06-18,x,1.5\n");
+        assert!(!read);
+        assert_eq!(
+            m,
+            [
+                "f.csv:1: expected a header row naming the columns (a, b, c), found a data row \
+              (\"2026-06-18\", \"x\", \"1.5\"): the file has no header row; add one"
+            ]
+        );
+        // A header with one known name is a header, whatever else it has.
+        let (read, m) = header_problems("a,1\n");
+        assert!(read && m.len() == 1, "{m:?}");
+        // Unknown names that are not data: the usual per-column problems.
+        let (read, m) = header_problems("x,y\n");
+        assert!(read && m.len() == 2, "{m:?}");
+    }
+
+    #[test]
+    fn dates_written_day_or_month_first_get_a_hint() {
+        assert!(day_month_year("06/18/2026") && day_month_year("18.06.2026"));
+        assert!(day_month_year("1-6-2026"));
+        assert!(!day_month_year("2026/06/18") && !day_month_year("06/18/26"));
+        let mut problems = Vec::new();
+        let recs = records("a,b,c\n06/18/2026,,\n", "f.csv", &mut problems);
+        let h = Header::read("f.csv", &recs[0], NAMES, &mut problems);
+        Row::new(&h, &recs[1], &mut problems).date(0, "a date");
+        assert!(problems[0]
+            .message
+            .ends_with("write it year first, as 2026-06-18)"));
+    }
+
     #[test]
     fn header_names_unknown_repeated_and_missing_columns() {
         let mut problems = Vec::new();

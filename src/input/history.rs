@@ -673,6 +673,84 @@ mod tests {
         );
     }
 
+    fn warnings(text: &str) -> Vec<String> {
+        let h = parse_history("h.csv", text).expect("history");
+        h.warnings.iter().map(|p| p.to_string()).collect()
+    }
+
+    #[test]
+    fn gaps_are_found_on_every_calendar_scale_and_in_any_order() {
+        // Consecutive labels, in any order: no warning.
+        for text in [
+            "period,default_rate_pct\n2012,1\n2010,1\n2011,1\n",
+            "period,default_rate_pct\n2011-11,1\n2011-12,1\n2012-01,1\n",
+            "period,default_rate_pct\n2011-Q3,1\n2011-Q4,1\n2012-Q1,1\n",
+            "period,default_rate_pct\n2011-H2,1\n2012-H1,1\n2012-H2,1\n",
+            "period,default_rate_pct\n2020-01-31,1\n2020-02-29,1\n2020-03-31,1\n2020-04-30,1\n",
+            // Labels that are not on one calendar: nothing to say.
+            "period,default_rate_pct\na,1\nb,1\nd,1\n",
+            "period,default_rate_pct\n2010,1\n2011-Q1,1\n2014,1\n",
+        ] {
+            assert_eq!(warnings(text), Vec::<String>::new(), "{text}");
+        }
+        for (text, says) in [
+            (
+                "period,default_rate_pct\n2012,1\n2010,1\n2013,1\n",
+                "and 2011 is missing",
+            ),
+            (
+                "period,default_rate_pct\n2011-11,1\n2012-02,1\n2012-03,1\n",
+                "and 2 periods are missing",
+            ),
+            (
+                "period,default_rate_pct\n2011-Q3,1\n2012-Q1,1\n2012-Q2,1\n",
+                "and one period is missing",
+            ),
+            (
+                "period,default_rate_pct\n2011-H1,1\n2012-H1,1\n2012-H2,1\n",
+                "and one period is missing",
+            ),
+            (
+                "period,default_rate_pct\n2020-01-31,1\n2020-02-29,1\n2020-04-30,1\n2020-05-31,1\n",
+                "61 days later where periods are usually 31 days apart",
+            ),
+        ] {
+            let w = warnings(text);
+            assert_eq!(w.len(), 1, "{text}: {w:?}");
+            assert!(w[0].contains(says), "{text}: {w:?}");
+        }
+        // The warning sits at the later period's line, naming both.
+        assert_eq!(
+            warnings("period,default_rate_pct\n2012,1\n2010,1\n2013,1\n"),
+            ["h.csv:2:1: column \"period\": a gap in the periods: \"2010\" (line 3) is followed \
+              by \"2012\" (line 2), and 2011 is missing; the estimators take the periods as given, \
+              so check the file for a lost row"]
+        );
+    }
+
+    #[test]
+    fn rates_that_look_like_fractions_draw_one_warning() {
+        let w = warnings("period,default_rate_pct\n1,0.012\n2,0.05\n3,0\n");
+        assert_eq!(w.len(), 1, "{w:?}");
+        assert!(w[0].starts_with("h.csv:1:2: column \"default_rate_pct\": every default rate is below 0.1 (the largest is 0.05)"));
+        // One rate of 0.1% or more, all zeros, or counts: no warning.
+        assert!(warnings("period,default_rate_pct\n1,0.012\n2,0.1\n3,0\n").is_empty());
+        assert!(warnings("period,default_rate_pct\n1,0\n2,0\n3,0\n").is_empty());
+        assert!(warnings("period,defaults,obligors\n1,0,1000\n2,1,1000\n3,0,1000\n").is_empty());
+    }
+
+    #[test]
+    fn counts_stop_at_a_billion_obligors() {
+        let m = messages(
+            "period,defaults,obligors\n1,0,1000000001\n2,0,18446744073709551615\n3,0,10\n",
+        );
+        assert_eq!(m.len(), 2, "{m:?}");
+        assert!(m[0].starts_with(
+            "h.csv:2:3: column \"obligors\": expected a whole number up to 1000000000"
+        ));
+        assert!(messages("period,defaults,obligors\n1,0,1000000000\n2,0,10\n3,0,10\n").is_empty());
+    }
+
     #[test]
     fn too_few_periods() {
         assert_eq!(

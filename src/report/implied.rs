@@ -358,22 +358,16 @@ impl ImpliedDate {
     /// The report of one date's implied data, with the index check at the
     /// default tolerance.
     pub fn from_implied(d: &DateImplied) -> Self {
-        // The index check prices tranches the chain already priced: it
-        // cannot fail where the chain did not.
         Self::with_options(d, &ImpliedOptions::default())
-            .expect("the index check prices what the chain priced")
     }
 
     /// The report of one date's implied data; a maturity whose index gap
     /// exceeds the tolerance has every tranche flagged `index_mismatch`.
-    ///
-    /// # Errors
-    /// Only for tranches the library cannot price (ruled out by the readers).
-    pub fn with_options(d: &DateImplied, opts: &ImpliedOptions) -> Result<Self> {
+    pub fn with_options(d: &DateImplied, opts: &ImpliedOptions) -> Self {
         let mut tranches = Vec::new();
         let mut index_check = Vec::new();
         for m in &d.maturities {
-            let gap = index_gap(&d.pool, m)?;
+            let gap = index_gap(&d.pool, m);
             let mismatch = gap.is_some_and(|g| g.exceeds(opts.index_tolerance_bp));
             if let Some(g) = gap {
                 index_check.push(IndexCheck {
@@ -391,13 +385,13 @@ impl ImpliedDate {
                 tranches.push(row);
             }
         }
-        Ok(ImpliedDate {
+        ImpliedDate {
             date: d.pool.date.to_string(),
             recovery: d.pool.recovery,
             index: d.pool.pillars.iter().map(CurvePillar::from).collect(),
             tranches,
             index_check,
-        })
+        }
     }
 }
 
@@ -588,9 +582,8 @@ pub fn build_with_progress(
         .dates
         .par_iter()
         .map(|md| {
-            let out = Pool::build(md, opts, &snapshot.path).map(|pool| {
-                implied_date(md, pool).and_then(|d| ImpliedDate::with_options(&d, implied))
-            });
+            let out = Pool::build(md, opts, &snapshot.path)
+                .map(|pool| implied_date(md, pool).map(|d| ImpliedDate::with_options(&d, implied)));
             done();
             out
         })
