@@ -1,6 +1,6 @@
 //! Criterion benches of the pricing path: one tranche price, one compound
 //! solve, one base solve, the index bootstrap, and `implied` on one bundled
-//! snapshot and on the bundled history. Each asserts its result inside the
+//! snapshot and on the bundled history (on all cores, and on one). Each asserts its result inside the
 //! timed loop so a broken build cannot bench a shortcut.
 
 use criterion::{black_box, criterion_group, criterion_main, Criterion};
@@ -107,6 +107,20 @@ fn pricing(c: &mut Criterion) {
     group.bench_function("hgx_22_dates", |b| {
         b.iter(|| {
             let r = skewbook::report::implied::build(black_box(&history), &opts).expect("implied");
+            assert_eq!(r.dates.len(), history.dates.len());
+            r
+        })
+    });
+    // The same on one thread: the per-core speed, whatever the machine.
+    let one = rayon::ThreadPoolBuilder::new()
+        .num_threads(1)
+        .build()
+        .expect("thread pool");
+    group.bench_function("hgx_22_dates_one_thread", |b| {
+        b.iter(|| {
+            let r = one
+                .install(|| skewbook::report::implied::build(black_box(&history), &opts))
+                .expect("implied");
             assert_eq!(r.dates.len(), history.dates.len());
             r
         })

@@ -6,7 +6,16 @@
 //! cargo run --example quotes_from_skew -- lhy       > market-samples/lhy-2026-06-18.csv
 //! cargo run --example quotes_from_skew -- history   > market-samples/hgx-history-2026-06.csv
 //! cargo run --example quotes_from_skew -- kcx       > market-samples/kcx-2026-06-18.csv
+//! cargo run --example quotes_from_skew -- ptx       > market-samples/ptx-2026-06-18.csv
+//! cargo run --release --example quotes_from_skew -- long-history 2500 > /tmp/hgx-long.csv
 //! ```
+//!
+//! `long-history N` writes N business days of the HGX pool from 2 January
+//! 2017 on: the index rolls to a new series every 20 March and 20 September
+//! (maturities 3, 5, 7 and 10 years from the June or December after the
+//! roll), the zero curve moves with the date, and spreads and correlations
+//! wander smoothly (a sum of sines, so the file is the same every time).
+//! It is for measuring speed and memory on long runs; it is not committed.
 //!
 //! Each scenario is invented: an index curve (par spreads, or upfronts with
 //! a fixed coupon), a base-correlation curve per detachment, and the coupon
@@ -82,6 +91,54 @@ fn hgx(trade: NaiveDate, shift_bp: f64, rho_shift: f64) -> Scenario {
     }
 }
 
+/// HGX on the series on the run at `trade`: index maturities 3, 5, 7 and
+/// 10 years from the June or December after the last 20 March or 20
+/// September roll, tranches on the 5-year, a zero curve at fixed tenors.
+/// `x` drives the drift of spreads and correlations.
+fn hgx_rolling(trade: NaiveDate, x: f64) -> Scenario {
+    let y = trade.year();
+    let after_roll = |mm: u32| trade >= d(y, mm, 20);
+    // The June (March series) or December (September series) maturity month.
+    let (series_year, month) = if after_roll(9) {
+        (y, 12)
+    } else if after_roll(3) {
+        (y, 6)
+    } else {
+        (y - 1, 12)
+    };
+    let maturity = |years: i32| d(series_year + years, month, 20);
+    let level = 1.0 + 0.35 * (x / 97.0).sin() + 0.15 * (x / 23.0).sin();
+    let s = |bp: f64| Quote::Spread(bp * level / 1e4);
+    let rho = 0.04 * (x / 61.0).sin() + 0.01 * (x / 9.0).cos();
+    let r = 0.02 + 0.01 * (x / 400.0).sin();
+    let tenor = |days: u64| trade + Days::new(days);
+    Scenario {
+        trade,
+        recovery: 0.40,
+        index: vec![
+            (maturity(3), s(38.0)),
+            (maturity(5), s(58.0)),
+            (maturity(7), s(74.0)),
+            (maturity(10), s(88.0)),
+        ],
+        zeros: vec![
+            (tenor(365), r),
+            (tenor(730), r + 0.0017),
+            (tenor(1826), r + 0.0053),
+            (tenor(3652), r + 0.0090),
+        ],
+        tranches: vec![(
+            maturity(5),
+            layers(&[
+                (0.00, 0.03, Some(0.05), 0.18 + rho),
+                (0.03, 0.07, None, 0.28 + rho),
+                (0.07, 0.15, None, 0.41 + rho),
+                (0.15, 1.00, None, f64::NAN),
+            ]),
+        )],
+    }
+}
+
 /// Lantern High Yield (LHY): a high-yield-like pool quoted upfront with a
 /// 500 bp coupon, recovery 30%, flat rates.
 fn lhy() -> Scenario {
@@ -149,6 +206,48 @@ fn kcx() -> Scenario {
             curve(d(2031, 6, 20), [0.15, 0.24, 0.30, 0.39, 0.58]),
             curve(d(2033, 6, 20), [0.16, 0.27, 0.35, 0.46, 0.70]),
             curve(d(2036, 6, 20), [0.10, 0.30, 0.42, 0.58, 0.90]),
+        ],
+    }
+}
+
+/// Petrel Credit (PTX): a crossover-like pool with two steep skews. The
+/// 5-year one is steep enough that `linear` and `pchip` break the
+/// no-arbitrage laws between and beyond its knots; the 7-year one is so
+/// steep at the top that its knots admit no arbitrage-free base
+/// expected-loss curve: [22%, 60%] carries more expected loss per unit of
+/// width than [12%, 22%] below it.
+fn ptx() -> Scenario {
+    let s = |bp: f64| Quote::Spread(bp / 1e4);
+    let curve = |m: NaiveDate, rho: [f64; 5]| {
+        (
+            m,
+            layers(&[
+                (0.00, 0.03, Some(0.05), rho[0]),
+                (0.03, 0.06, Some(0.05), rho[1]),
+                (0.06, 0.09, Some(0.01), rho[2]),
+                (0.09, 0.12, None, rho[3]),
+                (0.12, 0.22, None, rho[4]),
+                (0.22, 1.00, None, f64::NAN),
+            ]),
+        )
+    };
+    Scenario {
+        trade: d(2026, 6, 18),
+        recovery: 0.40,
+        index: vec![
+            (d(2029, 6, 20), s(118.0)),
+            (d(2031, 6, 20), s(146.0)),
+            (d(2033, 6, 20), s(163.0)),
+        ],
+        zeros: vec![
+            (d(2027, 6, 18), 0.0221),
+            (d(2029, 6, 18), 0.0240),
+            (d(2031, 6, 18), 0.0262),
+            (d(2033, 6, 18), 0.0281),
+        ],
+        tranches: vec![
+            curve(d(2031, 6, 20), [0.12, 0.25, 0.34, 0.42, 0.62]),
+            curve(d(2033, 6, 20), [0.11, 0.26, 0.36, 0.45, 0.72]),
         ],
     }
 }
@@ -267,6 +366,7 @@ fn main() -> Result<(), skewbook::Error> {
         "hgx" => print_scenario(&hgx(d(2026, 6, 18), 0.0, 0.0), true)?,
         "lhy" => print_scenario(&lhy(), true)?,
         "kcx" => print_scenario(&kcx(), true)?,
+        "ptx" => print_scenario(&ptx(), true)?,
         "history" => {
             // 22 business days of June 2026: spreads and correlations drift.
             let mut date = d(2026, 6, 1);
@@ -282,10 +382,32 @@ fn main() -> Result<(), skewbook::Error> {
                 date = date + Days::new(1);
             }
         }
+        "long-history" => {
+            let n: usize = std::env::args()
+                .nth(2)
+                .and_then(|n| n.parse().ok())
+                .ok_or_else(|| {
+                    skewbook::Error::msg(
+                        skewbook::ErrorKind::Usage,
+                        "long-history: expected a number of dates, e.g. long-history 2500",
+                    )
+                })?;
+            let mut date = d(2017, 1, 2);
+            let mut k = 0;
+            while k < n {
+                if !matches!(date.weekday(), Weekday::Sat | Weekday::Sun) {
+                    print_scenario(&hgx_rolling(date, k as f64), k == 0)?;
+                    k += 1;
+                }
+                date = date + Days::new(1);
+            }
+        }
         other => {
             return Err(skewbook::Error::msg(
                 skewbook::ErrorKind::Usage,
-                format!("unknown scenario {other:?}: expected hgx, lhy, kcx or history"),
+                format!(
+                    "unknown scenario {other:?}: expected hgx, lhy, kcx, ptx, history or long-history N"
+                ),
             ))
         }
     }

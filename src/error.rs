@@ -128,5 +128,124 @@ impl fmt::Display for Error {
 
 impl std::error::Error for Error {}
 
+/// Most problems printed for one file before the rest are counted.
+pub const MAX_LINES_PER_FILE: usize = 20;
+
+/// The lines to print for `problems`: at most `per_file` of each file, in
+/// order, then one line `path: and N more like this` for a file that has
+/// more. Problems with no file position count as one more "file".
+///
+/// A file with a US date in every row of a long history has one problem a
+/// row; its first lines show the pattern, and the rest would only bury the
+/// other messages.
+///
+/// ```
+/// use skewbook::error::{capped, Location, Problem};
+/// let at = |line| Problem::at(
+///     Location { path: "q.csv".into(), line, column: Some(1), header: None },
+///     "expected a date",
+/// );
+/// let problems: Vec<Problem> = (2..=31).map(at).collect();
+/// let lines = capped(&problems, 20);
+/// assert_eq!(lines.len(), 21);
+/// assert_eq!(lines[19], "q.csv:21:1: expected a date");
+/// assert_eq!(lines[20], "q.csv: and 10 more like this");
+/// ```
+pub fn capped(problems: &[Problem], per_file: usize) -> Vec<String> {
+    // Files in order of first appearance: (path, lines, problems not shown).
+    let mut files: Vec<(Option<&str>, Vec<String>, usize)> = Vec::new();
+    for p in problems {
+        let path = p.location.as_ref().map(|l| l.path.as_str());
+        let i = match files.iter().position(|f| f.0 == path) {
+            Some(i) => i,
+            None => {
+                files.push((path, Vec::new(), 0));
+                files.len() - 1
+            }
+        };
+        let f = &mut files[i];
+        if f.1.len() < per_file {
+            f.1.push(p.to_string());
+        } else {
+            f.2 += 1;
+        }
+    }
+    let mut out = Vec::new();
+    for (path, lines, more) in files {
+        out.extend(lines);
+        if more > 0 {
+            out.push(match path {
+                Some(p) => format!("{p}: and {more} more like this"),
+                None => format!("and {more} more like this"),
+            });
+        }
+    }
+    out
+}
+
 /// Result with the library's [`Error`].
 pub type Result<T> = std::result::Result<T, Error>;
+
+/// `x` with at most `digits` significant digits (at least 1), for messages:
+/// plain notation from 1e-4 to below 1e6, exponent form outside; trailing
+/// zeros dropped.
+///
+/// ```
+/// use skewbook::error::significant;
+/// assert_eq!(significant(55.123456789, 6), "55.1235");
+/// assert_eq!(significant(1e100, 6), "1e100");
+/// assert_eq!(significant(0.000123456789, 6), "0.000123457");
+/// assert_eq!(significant(-2.5e-7, 6), "-2.5e-7");
+/// assert_eq!(significant(40.0, 6), "40");
+/// assert_eq!(significant(999999.7, 6), "1e6");
+/// ```
+pub fn significant(x: f64, digits: usize) -> String {
+    if !x.is_finite() {
+        return format!("{x}");
+    }
+    if x == 0.0 {
+        return "0".to_string();
+    }
+    let digits = digits.max(1);
+    // Round once, in exponent form, so the exponent is that of the rounded value.
+    let e_form = format!("{:.*e}", digits - 1, x);
+    let (mantissa, exponent) = e_form.split_once('e').expect("exponent form");
+    let exponent: i32 = exponent.parse().expect("exponent");
+    let trim = |s: &str| -> String {
+        if s.contains('.') {
+            s.trim_end_matches('0').trim_end_matches('.').to_string()
+        } else {
+            s.to_string()
+        }
+    };
+    if (-4..6).contains(&exponent) {
+        let decimals = (digits as i32 - 1 - exponent).max(0) as usize;
+        let rounded: f64 = e_form.parse().expect("round trip");
+        trim(&format!("{rounded:.decimals$}"))
+    } else {
+        format!("{}e{exponent}", trim(mantissa))
+    }
+}
+
+/// Every value, or one error with the problems of every failure (the first
+/// failure's kind), in order: how a history reports all its bad dates at once.
+///
+/// # Errors
+/// As described.
+pub fn collect_all<T>(results: Vec<Result<T>>) -> Result<Vec<T>> {
+    let mut out = Vec::with_capacity(results.len());
+    let mut failure: Option<Error> = None;
+    for r in results {
+        match r {
+            Ok(v) => out.push(v),
+            Err(e) => match &mut failure {
+                None => failure = Some(e),
+                Some(f) => f.problems.extend(e.problems),
+            },
+        }
+    }
+    match failure {
+        Some(e) => Err(e),
+        None => Ok(out),
+    }
+}

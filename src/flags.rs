@@ -2,8 +2,9 @@
 //!
 //! Flags are results, not errors: a row with a flag is still printed. The
 //! same list feeds the JSON and CSV (by [`Flag::name`]), the table (by
-//! [`Flag::short`]), the README's flag table and the report's plain-words
-//! explanations (by [`Flag::meaning`]), so the three cannot drift apart.
+//! [`Flag::short`]), the format docs' flag table and the report's plain-words
+//! explanations (by [`Flag::meaning`]), so they cannot drift apart; the
+//! table in `docs/formats.md` is tested against this list.
 
 use serde::{Serialize, Serializer};
 use std::fmt;
@@ -33,6 +34,12 @@ pub enum Flag {
     FlatInCorrelation,
     /// A solver stopped without converging; the value it would have given is not reported.
     SolverFailed,
+    /// A compound or base correlation lies within 0.5% of a search limit:
+    /// the quote's unit is the likely mistake.
+    NearSearchLimit,
+    /// The maturity's tranches tile 0-100% but their quotes and the index
+    /// quote disagree by more than the tolerance.
+    IndexMismatch,
     /// A bound lies outside the knot range of a maturity used.
     ExtrapolatedDetachment,
     /// The maturity lies outside the surface's maturities.
@@ -45,11 +52,14 @@ pub enum Flag {
     NoMapping,
     /// The date has no base correlation at all: the trade is not priced.
     NoSkew,
+    /// `expected-loss`: no correlation in the search range gives the
+    /// interpolated base expected loss at a bound; the nearer end is used.
+    UnattainableExpectedLoss,
 }
 
 impl Flag {
     /// Every flag, in the order the documentation lists them.
-    pub const ALL: [Flag; 17] = [
+    pub const ALL: [Flag; 20] = [
         Flag::NoCompoundRoot,
         Flag::TwoCompoundRoots,
         Flag::CompoundTangent,
@@ -61,12 +71,15 @@ impl Flag {
         Flag::NoCorrelationDependence,
         Flag::FlatInCorrelation,
         Flag::SolverFailed,
+        Flag::NearSearchLimit,
+        Flag::IndexMismatch,
         Flag::ExtrapolatedDetachment,
         Flag::ExtrapolatedMaturity,
         Flag::NegativeExpectedLoss,
         Flag::SeveralMappings,
         Flag::NoMapping,
         Flag::NoSkew,
+        Flag::UnattainableExpectedLoss,
     ];
 
     /// The name in JSON and CSV.
@@ -83,12 +96,15 @@ impl Flag {
             Flag::NoCorrelationDependence => "no_correlation_dependence",
             Flag::FlatInCorrelation => "flat_in_correlation",
             Flag::SolverFailed => "solver_failed",
+            Flag::NearSearchLimit => "near_search_limit",
+            Flag::IndexMismatch => "index_mismatch",
             Flag::ExtrapolatedDetachment => "extrapolated_detachment",
             Flag::ExtrapolatedMaturity => "extrapolated_maturity",
             Flag::NegativeExpectedLoss => "negative_expected_loss",
             Flag::SeveralMappings => "several_mappings",
             Flag::NoMapping => "no_mapping",
             Flag::NoSkew => "no_skew",
+            Flag::UnattainableExpectedLoss => "unattainable_expected_loss",
         }
     }
 
@@ -106,12 +122,15 @@ impl Flag {
             Flag::NoCorrelationDependence => "whole pool",
             Flag::FlatInCorrelation => "flat in rho",
             Flag::SolverFailed => "solver fail",
+            Flag::NearSearchLimit => "check unit",
+            Flag::IndexMismatch => "index gap",
             Flag::ExtrapolatedDetachment => "extrap K",
             Flag::ExtrapolatedMaturity => "extrap T",
             Flag::NegativeExpectedLoss => "neg EL",
             Flag::SeveralMappings => "many maps",
             Flag::NoMapping => "no mapping",
             Flag::NoSkew => "no skew",
+            Flag::UnattainableExpectedLoss => "EL unattain",
         }
     }
 
@@ -151,6 +170,12 @@ impl Flag {
             Flag::SolverFailed => {
                 "a root finder stopped without converging; no value is reported for it"
             }
+            Flag::NearSearchLimit => {
+                "a compound or base correlation lies within 0.5% of a search limit (0.01% or 99.99%): check the quote's unit (spread_bp in basis points, upfront_pct in percent); a mezzanine's second compound root near 100% can be genuine"
+            }
+            Flag::IndexMismatch => {
+                "the maturity's tranches tile 0-100% but the protection their quotes imply differs from the index curve's by more than the tolerance (in bp of running spread): check the tranche quotes against the index quote"
+            }
             Flag::ExtrapolatedDetachment => {
                 "a bound lies outside the quoted detachments of a maturity used: its correlation is held flat"
             }
@@ -165,6 +190,9 @@ impl Flag {
             }
             Flag::NoMapping => "the mapping equation has no solution: the trade is not priced",
             Flag::NoSkew => "the date has no base correlation at all: the trade is not priced",
+            Flag::UnattainableExpectedLoss => {
+                "expected-loss: no correlation in [0.01%, 99.99%] gives the interpolated base expected loss at a bound at the trade's horizon; the nearer end of that range is used"
+            }
         }
     }
 }
@@ -195,16 +223,6 @@ pub fn join(flags: &[Flag], short: bool) -> String {
 mod tests {
     use super::Flag;
     use std::collections::HashSet;
-
-    /// The README's flag table is this list, row for row.
-    #[test]
-    fn readme_lists_every_flag_with_its_meaning() {
-        let readme = include_str!("../README.md");
-        for f in Flag::ALL {
-            let row = format!("| `{}` | {} |", f.name(), f.meaning());
-            assert!(readme.contains(&row), "README lacks: {row}");
-        }
-    }
 
     #[test]
     fn names_and_short_forms_are_unique() {

@@ -13,6 +13,8 @@
 //! - compound correlation (every root per tranche) and base correlation
 //!   (bootstrapped bottom-up per maturity) are backed out of quotes
 //!   ([`solve`]);
+//! - [`consistency`] checks that a maturity's tranche quotes agree with
+//!   the index curve;
 //! - [`realworld`] calibrates PD and asset correlation from default histories.
 //!
 //! Inside the library every rate, spread, probability and bound is a
@@ -52,6 +54,8 @@
 #![deny(missing_docs)]
 
 pub mod book;
+pub mod chart;
+pub mod consistency;
 pub mod curve;
 pub mod dates;
 pub mod error;

@@ -4,8 +4,12 @@
 //! downstream sees only checked values: spreads, coupons, upfronts, bounds,
 //! recoveries and rates are all fractions (0.03, not 3 or 300).
 
-use crate::error::Problem;
+use crate::error::{Error, Problem, Result};
 use chrono::NaiveDate;
+
+/// The pool name that means a snapshot's own index pool (in trades files;
+/// reserved in pools files).
+pub const INDEX_POOL: &str = "index";
 
 /// How a quote is expressed.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -149,4 +153,61 @@ pub fn tiles_from_zero(sorted: &[&TrancheQuote]) -> bool {
         next = t.detach;
     }
     true
+}
+
+/// The snapshot restricted to one trade date, or as it is when `only` is `None`.
+///
+/// # Errors
+/// [`crate::ErrorKind::Usage`] when the date is not in the file.
+pub fn select_date(snapshot: &Snapshot, only: Option<chrono::NaiveDate>) -> Result<Snapshot> {
+    let Some(d) = only else {
+        return Ok(snapshot.clone());
+    };
+    let dates: Vec<MarketDate> = snapshot
+        .dates
+        .iter()
+        .filter(|m| m.date == d)
+        .cloned()
+        .collect();
+    if dates.is_empty() {
+        let have: Vec<String> = snapshot.dates.iter().map(|m| m.date.to_string()).collect();
+        return Err(Error::msg(
+            crate::ErrorKind::Usage,
+            format!(
+                "--date {d}: {} has no quotes on that date (it has {})",
+                snapshot.path,
+                if have.len() > 6 {
+                    format!(
+                        "{} dates, {} to {}",
+                        have.len(),
+                        have[0],
+                        have[have.len() - 1]
+                    )
+                } else {
+                    have.join(", ")
+                }
+            ),
+        ));
+    }
+    Ok(Snapshot {
+        path: snapshot.path.clone(),
+        dates,
+        warnings: snapshot.warnings.clone(),
+    })
+}
+
+/// The dates of a snapshot for a message: all of them up to six, else the
+/// count and the first and last.
+pub fn date_span(snapshot: &Snapshot) -> String {
+    let have: Vec<String> = snapshot.dates.iter().map(|m| m.date.to_string()).collect();
+    if have.len() > 6 {
+        format!(
+            "{} dates, {} to {}",
+            have.len(),
+            have[0],
+            have[have.len() - 1]
+        )
+    } else {
+        have.join(", ")
+    }
 }

@@ -98,6 +98,7 @@ fn every_numeric_option_names_its_unit_in_the_help() {
         ("curve", "--recovery", "percent"),
         ("curve", "--rate", "percent"),
         ("implied", "--recovery", "percent"),
+        ("implied", "--index-tolerance", "bp"),
         ("price", "--correlation", "percent"),
         ("price", "--rate", "percent"),
         ("loss", "--pd", "percent"),

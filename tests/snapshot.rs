@@ -64,7 +64,7 @@ pub const MALFORMED: &[(&str, &str, &str)] = &[
     (
         "negative_spread.csv",
         "2:7",
-        "expected a spread of 0 bp or more, found \"-60\"",
+        "expected a spread from 0 up to (not including) 100000 bp, found \"-60\"",
     ),
     (
         "recovery_disagree.csv",
@@ -282,10 +282,10 @@ fn negative_zero_rates_and_zero_spreads_are_accepted() {
     let text = file(&[
         "2026-06-19,index,2031-06-20,,,spread_bp,60,,",
         "2026-06-19,tranche,2031-06-20,30,100,spread_bp,0,,",
-        "2026-06-19,zero,2027-06-21,,,zero_rate_pct,-99.5,,",
+        "2026-06-19,zero,2027-06-21,,,zero_rate_pct,-49.5,,",
     ]);
     let snap = parse_snapshot(&text, "q.csv").expect("valid");
-    assert_eq!(snap.dates[0].zeros[0].rate, -0.995);
+    assert_eq!(snap.dates[0].zeros[0].rate, -0.495);
     assert_eq!(snap.dates[0].tranches[0].quote, Quote::Spread(0.0));
 }
 
@@ -669,7 +669,7 @@ fn negative_spreads_and_coupons() {
         2,
         7,
         "quote",
-        &["expected a spread of 0 bp or more, found \"-0.5\""],
+        &["expected a spread from 0 up to (not including) 100000 bp, found \"-0.5\""],
     );
     let text = base_with(4, "2026-06-19,tranche,2031-06-20,3,7,spread_bp,-300,,");
     only(&text, 4, 7, "quote", &["found \"-300\""]);
@@ -679,7 +679,7 @@ fn negative_spreads_and_coupons() {
         3,
         8,
         "coupon_bp",
-        &["expected a coupon of 0 bp or more, found \"-500\""],
+        &["expected a coupon from 0 up to (not including) 100000 bp, found \"-500\""],
     );
 }
 
@@ -706,8 +706,8 @@ fn upfronts_lie_strictly_between_minus_and_plus_100_percent() {
 }
 
 #[test]
-fn zero_rates_lie_strictly_between_minus_and_plus_100_percent() {
-    for bad in ["100", "-100"] {
+fn zero_rates_lie_strictly_between_minus_and_plus_50_percent() {
+    for bad in ["100", "-100", "50", "-50"] {
         let text = base_with(
             5,
             &format!("2026-06-19,zero,2027-06-21,,,zero_rate_pct,{bad},,"),
@@ -718,7 +718,7 @@ fn zero_rates_lie_strictly_between_minus_and_plus_100_percent() {
             7,
             "quote",
             &[
-                "expected a zero rate above -100 and below 100 percent",
+                "expected a zero rate above -50 and below 50 percent",
                 &format!("found \"{bad}\""),
             ],
         );
@@ -733,7 +733,7 @@ fn bounds_lie_in_0_to_100_percent() {
         3,
         4,
         "attach_pct",
-        &["expected an attachment from 0 to 100 percent, found \"-1\""],
+        &["expected an attachment of 0, or from 0.01 to 100 percent, found \"-1\""],
     );
     let text = base_with(4, "2026-06-19,tranche,2031-06-20,3,100.5,spread_bp,300,,");
     only(
@@ -741,7 +741,7 @@ fn bounds_lie_in_0_to_100_percent() {
         4,
         5,
         "detach_pct",
-        &["expected a detachment from 0 to 100 percent, found \"100.5\""],
+        &["expected a detachment from 0.01 to 100 percent, found \"100.5\""],
     );
 }
 
@@ -914,7 +914,7 @@ fn several_problems_are_all_reported_in_line_order() {
         got,
         vec![
             format!("{path}:2:7: column \"quote\": expected a number, found \"sixty\""),
-            format!("{path}:4:7: column \"quote\": expected a spread of 0 bp or more, found \"-1\""),
+            format!("{path}:4:7: column \"quote\": expected a spread from 0 up to (not including) 100000 bp, found \"-1\""),
             format!("{path}:6:1: column \"date\": expected an ISO 8601 date YYYY-MM-DD, found \"2026-13-01\" (no such day)"),
         ]
     );

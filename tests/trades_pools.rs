@@ -278,7 +278,8 @@ fn trades_empty_cells() {
 fn trades_bad_dates() {
     assert_eq!(
         trade_error("T1,index,20/06/2031,0,3,500,1e6,buy"),
-        "book.csv:3:3: column \"maturity\": expected an ISO 8601 date YYYY-MM-DD, found \"20/06/2031\""
+        "book.csv:3:3: column \"maturity\": expected an ISO 8601 date YYYY-MM-DD, found \"20/06/2031\" \
+         (a day-month-year or month-day-year date: write it year first, as 2026-06-18)"
     );
     assert_eq!(
         trade_error("T1,index,2031-02-29,0,3,500,1e6,buy"),
@@ -290,11 +291,11 @@ fn trades_bad_dates() {
 fn trades_bounds() {
     assert_eq!(
         trade_error("T1,index,2031-06-20,-1,3,500,1e6,buy"),
-        "book.csv:3:4: column \"attach_pct\": expected an attachment from 0 to 100 percent, found \"-1\""
+        "book.csv:3:4: column \"attach_pct\": expected an attachment of 0, or from 0.01 to 100 percent, found \"-1\""
     );
     assert_eq!(
         trade_error("T1,index,2031-06-20,3,100.5,500,1e6,buy"),
-        "book.csv:3:5: column \"detach_pct\": expected a detachment from 0 to 100 percent, found \"100.5\""
+        "book.csv:3:5: column \"detach_pct\": expected a detachment from 0.01 to 100 percent, found \"100.5\""
     );
     assert_eq!(
         trade_error("T1,index,2031-06-20,7,3,500,1e6,buy"),
@@ -310,13 +311,13 @@ fn trades_bounds() {
 fn trades_coupon_and_notional() {
     assert_eq!(
         trade_error("T1,index,2031-06-20,0,3,-5,1e6,buy"),
-        "book.csv:3:6: column \"coupon_bp\": expected a coupon of 0 bp or more, found \"-5\""
+        "book.csv:3:6: column \"coupon_bp\": expected a coupon from 0 up to (not including) 100000 bp, found \"-5\""
     );
     for bad in ["0", "-1e6", "-0"] {
         assert_eq!(
             trade_error(&format!("T1,index,2031-06-20,0,3,500,{bad},buy")),
             format!(
-                "book.csv:3:7: column \"notional\": expected a notional above 0, found \"{bad}\""
+                "book.csv:3:7: column \"notional\": expected a notional above 0 and below 1e15, found \"{bad}\""
             )
         );
     }
@@ -357,7 +358,7 @@ fn trades_every_problem_in_line_order_with_true_lines() {
             "book.csv:7:3: column \"maturity\": expected an ISO 8601 date YYYY-MM-DD, found \"2031-13-20\" (no such day)",
             "book.csv:7:5: column \"detach_pct\": expected a detachment above the attachment \"9\" (column 4), found \"3\"",
             "book.csv:7:6: column \"coupon_bp\": expected a number, found \"x\"",
-            "book.csv:7:7: column \"notional\": expected a notional above 0, found \"0\"",
+            "book.csv:7:7: column \"notional\": expected a notional above 0 and below 1e15, found \"0\"",
         ]
     );
 }
@@ -632,7 +633,7 @@ fn pools_quotes_and_coupons() {
         assert_eq!(
             pool_error(&format!("grey,2031-06-20,spread_bp,{bad},,35")),
             format!(
-                "pools.csv:3:4: column \"quote\": expected a spread above 0 bp, found \"{bad}\""
+                "pools.csv:3:4: column \"quote\": expected a spread above 0 and below 100000 bp, found \"{bad}\""
             )
         );
     }
@@ -648,7 +649,7 @@ fn pools_quotes_and_coupons() {
     );
     assert_eq!(
         pool_error("grey,2031-06-20,upfront_pct,5,-100,35"),
-        "pools.csv:3:5: column \"coupon_bp\": expected a coupon of 0 bp or more, found \"-100\""
+        "pools.csv:3:5: column \"coupon_bp\": expected a coupon from 0 up to (not including) 100000 bp, found \"-100\""
     );
     assert_eq!(
         pool_error("grey,2031-06-20,spread_bp,120,100,35"),

@@ -6,7 +6,7 @@ use crate::surface::Surface;
 use crate::tranche::Tranche;
 use chrono::NaiveDate;
 
-pub use crate::input::trades::INDEX_POOL;
+pub use crate::market::INDEX_POOL;
 
 /// The contract of one tranche trade, in the library's units.
 #[derive(Debug, Clone, PartialEq)]

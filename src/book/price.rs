@@ -47,7 +47,8 @@ pub struct Valuation {
     pub expected_loss: f64,
     /// s N (P - c Ann), currency.
     pub pv: f64,
-    /// `extrapolated_detachment`, `extrapolated_maturity`, `negative_expected_loss`, `several_mappings`.
+    /// `extrapolated_detachment`, `extrapolated_maturity`, `negative_expected_loss`,
+    /// `several_mappings`, `unattainable_expected_loss`.
     pub flags: Vec<Flag>,
 }
 
@@ -82,6 +83,7 @@ struct Bound {
     extrapolated_detachment: bool,
     extrapolated_maturity: bool,
     several: bool,
+    unattainable: bool,
 }
 
 /// Values `t` in `market` under `mapping`.
@@ -154,6 +156,7 @@ fn evaluate(
                 extrapolated_detachment: false,
                 extrapolated_maturity: false,
                 several: false,
+                unattainable: false,
             }));
         }
         let mapped = if t.pool == INDEX_POOL {
@@ -179,6 +182,7 @@ fn evaluate(
             extrapolated_detachment: l.extrapolated_detachment,
             extrapolated_maturity: l.extrapolated_maturity,
             several,
+            unattainable: l.unattainable_loss,
         }))
     };
     let (Some(a), Some(d)) = (bound(t.tranche.attach())?, bound(t.tranche.detach())?) else {
@@ -199,35 +203,7 @@ fn evaluate(
     };
     let running = legs.protection - t.coupon * legs.annuity;
     let pv = t.sign * t.notional * running;
-    let mut flags = Vec::new();
-    if !detail {
-        return Ok(Priced::Valued(Valuation {
-            rho_attach: a.rho,
-            rho_detach: d.rho,
-            index_equivalent_attach: a.k_index,
-            index_equivalent_detach: d.k_index,
-            protection: legs.protection,
-            annuity: legs.annuity,
-            par_spread: None,
-            upfront: 0.0,
-            expected_loss: legs.expected_loss,
-            pv,
-            flags,
-        }));
-    }
-    if a.extrapolated_detachment || d.extrapolated_detachment {
-        flags.push(Flag::ExtrapolatedDetachment);
-    }
-    if a.extrapolated_maturity || d.extrapolated_maturity || outside_maturities(market, t) {
-        flags.push(Flag::ExtrapolatedMaturity);
-    }
-    if losses.iter().any(|&x| x < -NEGATIVE_LOSS_TOLERANCE) {
-        flags.push(Flag::NegativeExpectedLoss);
-    }
-    if a.several || d.several {
-        flags.push(Flag::SeveralMappings);
-    }
-    Ok(Priced::Valued(Valuation {
+    let mut valuation = Valuation {
         rho_attach: a.rho,
         rho_detach: d.rho,
         index_equivalent_attach: a.k_index,
@@ -238,8 +214,27 @@ fn evaluate(
         upfront: v.model_upfront(&legs),
         expected_loss: legs.expected_loss,
         pv,
-        flags,
-    }))
+        flags: Vec::new(),
+    };
+    if detail {
+        let flags = &mut valuation.flags;
+        if a.extrapolated_detachment || d.extrapolated_detachment {
+            flags.push(Flag::ExtrapolatedDetachment);
+        }
+        if a.extrapolated_maturity || d.extrapolated_maturity || outside_maturities(market, t) {
+            flags.push(Flag::ExtrapolatedMaturity);
+        }
+        if losses.iter().any(|&x| x < -NEGATIVE_LOSS_TOLERANCE) {
+            flags.push(Flag::NegativeExpectedLoss);
+        }
+        if a.several || d.several {
+            flags.push(Flag::SeveralMappings);
+        }
+        if a.unattainable || d.unattainable {
+            flags.push(Flag::UnattainableExpectedLoss);
+        }
+    }
+    Ok(Priced::Valued(valuation))
 }
 
 /// Whether the trade's maturity lies outside the surface's maturities

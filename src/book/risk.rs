@@ -94,9 +94,10 @@ pub const RECOVERY_BUMP: f64 = 0.01;
 /// Names in the pool for jump-to-default when none is given.
 pub const DEFAULT_NAMES: usize = 125;
 
-/// The risk figures of one trade; `None` where the bumped valuation could
-/// not be priced (no mapping, an unfittable bumped curve).
-#[derive(Debug, Clone, Copy, PartialEq, Default)]
+/// The risk figures of one trade, currency with the holder's sign; `None`
+/// where the bumped valuation could not be priced (no mapping, an
+/// unfittable bumped curve). Serialised under the contract's field names.
+#[derive(Debug, Clone, Copy, PartialEq, Default, serde::Serialize)]
 pub struct Risk {
     /// pv under the spread bump minus pv.
     pub spread_01: Option<f64>,

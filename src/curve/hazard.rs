@@ -7,14 +7,13 @@
 //! depends only on the hazard up to its own protection end, so once a pillar
 //! is solved, later pillars cannot disturb it: every quote reprices exactly.
 
-use super::legs::{index_legs, index_legs_of_periods, IndexLegs};
+use super::legs::{index_legs, index_legs_of_periods, IndexLegs, LastPieceLegs};
 use super::piecewise::PiecewiseConstant;
 use super::DiscountCurve;
 use crate::dates::Schedule;
-use crate::error::{Error, ErrorKind, Problem, Result};
+use crate::error::{significant, Error, ErrorKind, Problem, Result};
 use crate::market::{IndexQuote, Quote};
-use crate::math::root::{brent, Tolerance};
-use crate::output::significant;
+use crate::math::root::{newton_bracketed_hermite, Tolerance};
 use chrono::NaiveDate;
 
 /// Piecewise-constant pool hazard rate in curve time (Act/365F).
@@ -173,18 +172,46 @@ pub fn bootstrap(
             recovery,
             0..split,
         );
+        v.pop();
+        v.push(0.0);
+        // The periods this pillar's hazard moves, with everything else
+        // about them computed once.
+        let curve0 = HazardCurve::from_knots(&k, &v);
+        let moving = LastPieceLegs::new(
+            &schedule,
+            discount,
+            curve0.rate(),
+            previous,
+            recovery,
+            split..n,
+        );
         let legs_at = |h: f64| {
-            let mut v = hazards.clone();
-            v.push(h);
-            let curve = HazardCurve::from_knots(&k, &v);
-            let rest = index_legs_of_periods(&schedule, discount, curve.rate(), recovery, split..n);
+            let rest = moving.legs(h);
             IndexLegs {
                 protection: fixed.protection + rest.protection,
                 annuity: fixed.annuity + rest.annuity,
             }
         };
         let quote_at = |h: f64| model_quote(legs_at(h), q.quote, df_settle);
-        let gap = |h: f64| quote_at(h) - target;
+        // The gap and its derivative in h, for Newton.
+        let gap_and_slope = |h: f64| {
+            let (rest, d) = moving.legs_and_slope(h);
+            let legs = IndexLegs {
+                protection: fixed.protection + rest.protection,
+                annuity: fixed.annuity + rest.annuity,
+            };
+            let slope = match q.quote {
+                Quote::Spread(_) => {
+                    (d.protection * legs.annuity - legs.protection * d.annuity)
+                        / (legs.annuity * legs.annuity)
+                        * 1e4
+                }
+                Quote::Upfront { coupon, .. } => {
+                    (d.protection - coupon * d.annuity) / df_settle * 100.0
+                }
+            };
+            (model_quote(legs, q.quote, df_settle) - target, slope)
+        };
         let fail = |why: String| {
             Error::new(
                 ErrorKind::Unfittable,
@@ -197,8 +224,8 @@ pub fn bootstrap(
                 )),
             )
         };
-        let q0 = quote_at(0.0);
-        if q0 - target > REPRICE_TOLERANCE {
+        let (g0, s0) = gap_and_slope(0.0);
+        if g0 > REPRICE_TOLERANCE {
             let why = if knots.is_empty() {
                 "a pool with no default risk already pays more than the quote"
             } else {
@@ -206,32 +233,33 @@ pub fn bootstrap(
             };
             return Err(fail(format!(
                 "even a zero hazard rate on this pillar gives {} ({why})",
-                significant(q0, 6)
+                significant(quote_at(0.0), 6)
             )));
         }
         // Bracket on a geometric grid of hazard rates. The model quote rises
         // with the hazard until, at very large hazards, most defaults fall
         // before step-in and the protection bought shrinks again; so when no
         // grid point reaches the quote, look for the maximum in between.
-        // The search compares model quotes, not gaps to the quote: against a
-        // huge quote every gap rounds to the same number.
         let (mut lo, mut hi) = (0.0, 0.05);
-        let mut qhi = quote_at(hi);
-        let mut best = (0.0, q0);
-        while qhi - target < 0.0 && hi < 1e3 {
-            if qhi > best.1 {
-                best = (hi, qhi);
+        let (mut glo, mut slo) = (g0, s0);
+        let (mut ghi, mut shi) = gap_and_slope(hi);
+        let mut best = (0.0, g0);
+        while ghi < 0.0 && hi < 1e3 {
+            if ghi > best.1 {
+                best = (hi, ghi);
             }
-            lo = hi;
+            (lo, glo, slo) = (hi, ghi, shi);
             hi *= 4.0;
-            qhi = quote_at(hi);
+            (ghi, shi) = gap_and_slope(hi);
         }
-        if qhi - target < 0.0 {
+        if ghi < 0.0 {
             let (a, b) = if best.0 == 0.0 {
                 (0.0, 0.05)
             } else {
                 (best.0 / 4.0, best.0 * 4.0)
             };
+            // Model quotes, not gaps to the quote: against a huge quote
+            // every gap rounds to the same number.
             let (peak, qpeak) = maximise(&quote_at, a, b);
             if qpeak - target < 0.0 {
                 return Err(fail(format!(
@@ -243,13 +271,18 @@ pub fn bootstrap(
             // The rising branch: every grid point below the peak is below the quote.
             lo = if best.0 == 0.0 { 0.0 } else { best.0 / 4.0 }.min(peak);
             hi = peak;
+            (glo, slo) = gap_and_slope(lo);
+            (ghi, shi) = gap_and_slope(hi);
         }
         let tol = Tolerance {
-            residual: REPRICE_TOLERANCE,
+            residual: REPRICE_TOLERANCE * 1e-2,
             width: 1e-16,
             max_iterations: 200,
         };
-        let sol = brent(gap, lo, hi, tol).map_err(|e| fail(format!("the solver stopped: {e}")))?;
+        // Newton with the analytic slope, kept inside the bracket, started
+        // from the cubic through the bracket's values and slopes.
+        let sol = newton_bracketed_hermite(gap_and_slope, (lo, hi), (glo, ghi), (slo, shi), tol)
+            .map_err(|e| fail(format!("the solver stopped: {e}")))?;
         let h = sol.value.max(0.0);
         knots.push(knot);
         hazards.push(h);

@@ -42,8 +42,14 @@ fn exp_moments_series(lambda: f64, dt: f64) -> (f64, f64) {
     let x = lambda * dt;
     let (mut term, mut s1, mut s2) = (1.0, 0.0, 0.0);
     for n in 0..24 {
-        s1 += term / (n + 1) as f64;
-        s2 += term / (n + 2) as f64;
+        let (t1, t2) = (s1 + term / (n + 1) as f64, s2 + term / (n + 2) as f64);
+        // |x| < 0.5: each term is under half the one before, so once a
+        // term leaves both sums unchanged, every later one does too (the
+        // sums are the 24-term sums to the bit).
+        if t1 == s1 && t2 == s2 {
+            break;
+        }
+        (s1, s2) = (t1, t2);
         term *= -x / (n + 1) as f64;
     }
     (dt * s1, dt * dt * s2)
@@ -55,6 +61,27 @@ fn exp_moments_closed(lambda: f64, dt: f64) -> (f64, f64) {
         -(-x).exp_m1() / lambda,
         (1.0 - (-x).exp() * (1.0 + x)) / (lambda * lambda),
     )
+}
+
+/// E3 = ∫₀^Δ τ² e^(-λτ) dτ (= -dE2/dλ), by its series below |λΔ| = 0.5
+/// (Δ³ Σ (-x)ⁿ / ((n+3) n!)) and in closed form above
+/// ((2 - e^(-x)(x² + 2x + 2)) / λ³).
+fn exp_moment3(lambda: f64, dt: f64) -> f64 {
+    let x = lambda * dt;
+    if x.abs() < 0.5 {
+        let (mut term, mut s3) = (1.0, 0.0);
+        for n in 0..24 {
+            let t3 = s3 + term / (n + 3) as f64;
+            if t3 == s3 {
+                break;
+            }
+            s3 = t3;
+            term *= -x / (n + 1) as f64;
+        }
+        dt * dt * dt * s3
+    } else {
+        (2.0 - (-x).exp() * (x * x + 2.0 * x + 2.0)) / (lambda * lambda * lambda)
+    }
 }
 
 /// Sorted breakpoints of both curves strictly inside (a, b).
@@ -171,9 +198,285 @@ pub fn index_legs_of_periods(
     }
 }
 
+/// One sub-interval of a period, as [`LastPieceLegs`] keeps it.
+#[derive(Debug, Clone, Copy)]
+enum Piece {
+    /// Under a hazard knot already solved: its contributions to the
+    /// discounted default probability and to the accrued-on-default
+    /// integral, computed once (`None` for a zero hazard).
+    Fixed(Option<(f64, f64)>),
+    /// On the segment being solved, [start, start + dt).
+    Solved {
+        /// Start of the sub-interval.
+        a: f64,
+        /// Its length.
+        dt: f64,
+        /// Start minus the period start (the accrual's time weight).
+        since_start: f64,
+        /// Forward rate on it.
+        fwd: f64,
+        /// Integral of the forward rate from 0 to `a`.
+        fwd_integral: f64,
+    },
+}
+
+/// One period of [`LastPieceLegs`]: its sub-intervals and its end.
+#[derive(Debug, Clone)]
+struct PeriodPieces {
+    pieces: Vec<Piece>,
+    /// accrual · DF(pay).
+    accrual_df: f64,
+    /// Curve time of the period end.
+    t_end: f64,
+}
+
+/// The index legs of some periods of a schedule as a function of the one
+/// hazard rate not yet solved: the rate from the last solved knot `s0`
+/// onward. Everything else (the sub-intervals, the forward curve on them,
+/// the contributions under solved knots) is computed once, so the
+/// bootstrap's solver evaluates only what moves with that rate.
+///
+/// [`LastPieceLegs::legs`] returns what [`index_legs_of_periods`] returns
+/// on the curve with that hazard, to the bit: the same operations on the
+/// same numbers, in the same order.
+#[derive(Debug, Clone)]
+pub(crate) struct LastPieceLegs {
+    periods: Vec<PeriodPieces>,
+    /// Where the solved segment starts (the last solved knot, or 0).
+    s0: f64,
+    /// The hazard integral from 0 to `s0`.
+    integral_s0: f64,
+    recovery: f64,
+}
+
+impl LastPieceLegs {
+    /// The periods `range` of `schedule` on `curve`, a hazard curve whose
+    /// knots after `s0` all carry the one rate being solved (any value:
+    /// only its knots and the rates before `s0` are read).
+    pub(crate) fn new(
+        schedule: &Schedule,
+        discount: &DiscountCurve,
+        curve: &PiecewiseConstant,
+        s0: f64,
+        recovery: f64,
+        range: std::ops::Range<usize>,
+    ) -> Self {
+        let fwd = discount.forward();
+        let mut cuts = Vec::with_capacity(8);
+        let mut periods = Vec::with_capacity(range.len());
+        for p in &schedule.periods[range] {
+            breakpoints(p.t_start, p.t_end, curve, fwd, &mut cuts);
+            let pieces = cuts
+                .windows(2)
+                .map(|w| {
+                    let (a, b) = (w[0], w[1]);
+                    if s0 > 0.0 && a < s0 {
+                        let h = curve.value_at(a);
+                        if h == 0.0 {
+                            return Piece::Fixed(None);
+                        }
+                        let lambda = h + fwd.value_at(a);
+                        let ds = (-(curve.integral(a) + fwd.integral(a))).exp();
+                        let (e1, e2) = exp_moments(lambda, b - a);
+                        Piece::Fixed(Some((h * ds * e1, h * ds * ((a - p.t_start) * e1 + e2))))
+                    } else {
+                        Piece::Solved {
+                            a,
+                            dt: b - a,
+                            since_start: a - p.t_start,
+                            fwd: fwd.value_at(a),
+                            fwd_integral: fwd.integral(a),
+                        }
+                    }
+                })
+                .collect();
+            periods.push(PeriodPieces {
+                pieces,
+                accrual_df: p.accrual * discount.df(p.t_pay),
+                t_end: p.t_end,
+            });
+        }
+        LastPieceLegs {
+            periods,
+            s0,
+            integral_s0: curve.integral(s0),
+            recovery,
+        }
+    }
+
+    /// The legs with hazard `h` from `s0` on, and their derivatives in `h`.
+    ///
+    /// # Formula
+    /// On a sub-interval [a, a + Δ] after `s0`, with `g = a - s0`,
+    /// `σ = a - period start`, `DS = exp(-(H(a) + F(a)))`, and
+    /// `dE1/dλ = -E2`, `dE2/dλ = -E3`:
+    /// ```text
+    /// d(h DS E1)/dh           = DS (E1 (1 - h g) - h E2)
+    /// d(h DS (σ E1 + E2))/dh  = DS ((σ E1 + E2)(1 - h g) - h (σ E2 + E3))
+    /// d S(end)/dh             = -(end - s0) S(end)
+    /// ```
+    pub(crate) fn legs_and_slope(&self, h: f64) -> (IndexLegs, IndexLegs) {
+        let integral = |t: f64| self.integral_s0 + h * (t - self.s0);
+        let (mut default_pv, mut annuity) = (0.0, 0.0);
+        let (mut d_default_pv, mut d_annuity) = (0.0, 0.0);
+        for p in &self.periods {
+            let (mut accrued, mut d_accrued) = (0.0, 0.0);
+            for piece in &p.pieces {
+                match *piece {
+                    Piece::Fixed(None) => {}
+                    Piece::Fixed(Some((pv, acc))) => {
+                        default_pv += pv;
+                        accrued += acc;
+                    }
+                    Piece::Solved {
+                        a,
+                        dt,
+                        since_start,
+                        fwd,
+                        fwd_integral,
+                    } => {
+                        let lambda = h + fwd;
+                        let ds = (-(integral(a) + fwd_integral)).exp();
+                        let (e1, e2) = exp_moments(lambda, dt);
+                        let e3 = exp_moment3(lambda, dt);
+                        let moved = 1.0 - h * (a - self.s0);
+                        if h != 0.0 {
+                            default_pv += h * ds * e1;
+                            accrued += h * ds * (since_start * e1 + e2);
+                        }
+                        d_default_pv += ds * (e1 * moved - h * e2);
+                        d_accrued +=
+                            ds * ((since_start * e1 + e2) * moved - h * (since_start * e2 + e3));
+                    }
+                }
+            }
+            let survival_end = (-integral(p.t_end)).exp();
+            annuity += p.accrual_df * survival_end + accrued * 365.0 / 360.0;
+            d_annuity +=
+                p.accrual_df * (-(p.t_end - self.s0) * survival_end) + d_accrued * 365.0 / 360.0;
+        }
+        (
+            IndexLegs {
+                protection: (1.0 - self.recovery) * default_pv,
+                annuity,
+            },
+            IndexLegs {
+                protection: (1.0 - self.recovery) * d_default_pv,
+                annuity: d_annuity,
+            },
+        )
+    }
+
+    /// The legs with hazard `h` from `s0` on.
+    pub(crate) fn legs(&self, h: f64) -> IndexLegs {
+        // The hazard integral at t >= s0, as PiecewiseConstant::integral
+        // forms it on the segment starting at s0.
+        let integral = |t: f64| self.integral_s0 + h * (t - self.s0);
+        let (mut default_pv, mut annuity) = (0.0, 0.0);
+        for p in &self.periods {
+            let mut accrued = 0.0;
+            for piece in &p.pieces {
+                match *piece {
+                    Piece::Fixed(None) => {}
+                    Piece::Fixed(Some((pv, acc))) => {
+                        default_pv += pv;
+                        accrued += acc;
+                    }
+                    Piece::Solved {
+                        a,
+                        dt,
+                        since_start,
+                        fwd,
+                        fwd_integral,
+                    } => {
+                        if h == 0.0 {
+                            continue;
+                        }
+                        let lambda = h + fwd;
+                        let ds = (-(integral(a) + fwd_integral)).exp();
+                        let (e1, e2) = exp_moments(lambda, dt);
+                        default_pv += h * ds * e1;
+                        accrued += h * ds * (since_start * e1 + e2);
+                    }
+                }
+            }
+            let survival_end = (-integral(p.t_end)).exp();
+            annuity += p.accrual_df * survival_end + accrued * 365.0 / 360.0;
+        }
+        IndexLegs {
+            protection: (1.0 - self.recovery) * default_pv,
+            annuity,
+        }
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    /// The slope of [`LastPieceLegs::legs_and_slope`] against a central
+    /// difference of its legs, with a solved knot before the segment and a
+    /// forward curve with breakpoints; its legs are [`LastPieceLegs::legs`]'s.
+    #[test]
+    fn last_piece_slope_matches_a_central_difference() {
+        use crate::curve::DiscountCurve;
+        use chrono::NaiveDate;
+        let trade = NaiveDate::from_ymd_opt(2026, 6, 18).expect("date");
+        let s = Schedule::new(trade, NaiveDate::from_ymd_opt(2033, 6, 20).expect("date"));
+        let pillar = |y: i32, rate: f64| crate::market::ZeroPillar {
+            date: NaiveDate::from_ymd_opt(y, 6, 18).expect("date"),
+            rate,
+            line: 0,
+        };
+        let zeros = [pillar(2027, 0.02), pillar(2029, 0.025), pillar(2032, 0.03)];
+        let discount = DiscountCurve::from_zero_pillars(trade, &zeros, "test").expect("curve");
+        let s0 = 3.0;
+        let knot = s.protection_end_time();
+        let curve = PiecewiseConstant::new(vec![s0, knot], vec![0.012, 0.0, 0.0]);
+        let split = s.periods.partition_point(|p| p.t_end <= s0);
+        let plan = LastPieceLegs::new(&s, &discount, &curve, s0, 0.4, split..s.periods.len());
+        for h in [0.0, 0.004, 0.02, 0.3, 2.0] {
+            let (legs, slope) = plan.legs_and_slope(h);
+            assert_eq!(legs, plan.legs(h), "{h}");
+            let step = 1e-6 * h.max(1e-3);
+            let (up, down) = (plan.legs(h + step), plan.legs((h - step).max(0.0)));
+            let span = h + step - (h - step).max(0.0);
+            let fd_p = (up.protection - down.protection) / span;
+            let fd_a = (up.annuity - down.annuity) / span;
+            assert!(
+                (fd_p - slope.protection).abs() < 1e-7 * (1.0 + fd_p.abs()),
+                "{h}: {fd_p} vs {}",
+                slope.protection
+            );
+            assert!(
+                (fd_a - slope.annuity).abs() < 1e-7 * (1.0 + fd_a.abs()),
+                "{h}: {fd_a} vs {}",
+                slope.annuity
+            );
+        }
+    }
+
+    /// E3 by its series and in closed form meet around the switch, and
+    /// match a midpoint rule.
+    #[test]
+    fn third_moment_series_and_closed_form_meet() {
+        for &(l, dt) in &[
+            (0.05, 0.25),
+            (2.0, 0.25),
+            (1.9, 0.25),
+            (2.1, 0.25),
+            (5.0, 0.3),
+        ] {
+            let n = 20000;
+            let mut i3 = 0.0;
+            for k in 0..n {
+                let t = (k as f64 + 0.5) * dt / n as f64;
+                i3 += t * t * (-l * t).exp() * dt / n as f64;
+            }
+            let e3 = exp_moment3(l, dt);
+            assert!((e3 - i3).abs() < 1e-8 * e3, "{l} {dt}: {e3} vs {i3}");
+        }
+    }
 
     #[test]
     fn series_and_closed_form_meet() {

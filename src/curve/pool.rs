@@ -3,7 +3,7 @@
 
 use super::{bootstrap, DiscountCurve, HazardCurve, Pillar};
 use crate::error::{Error, ErrorKind, Result};
-use crate::market::{IndexQuote, MarketDate, Quote};
+use crate::market::{IndexQuote, MarketDate, Quote, Snapshot};
 use chrono::NaiveDate;
 
 /// Recovery used when neither the snapshot nor the command line gives one.
@@ -212,4 +212,25 @@ impl Pool {
             &self.source,
         )
     }
+}
+
+/// Builds the index pool (curves) of every date of a snapshot, collecting
+/// every date's error into one [`Error`] so a history shows all its bad
+/// dates at once. Dates are bootstrapped in parallel (rayon); the result is
+/// in date order whatever the number of threads.
+///
+/// # Errors
+/// The first error's kind, with the problems of every failing date.
+pub fn pools_for_all_dates(
+    snapshot: &Snapshot,
+    opts: &MarketOptions,
+) -> Result<Vec<(MarketDate, Pool)>> {
+    use rayon::prelude::*;
+    let pools: Vec<Result<Pool>> = snapshot
+        .dates
+        .par_iter()
+        .map(|md| Pool::build(md, opts, &snapshot.path))
+        .collect();
+    let pools = crate::error::collect_all(pools)?;
+    Ok(snapshot.dates.iter().cloned().zip(pools).collect())
 }

@@ -207,6 +207,19 @@ pub(crate) fn parse_iso_date(s: &str) -> Result<NaiveDate, DateError> {
     NaiveDate::from_ymd_opt(y, m, d).ok_or(DateError::NoSuchDay)
 }
 
+/// Whether `s` looks like `06/18/2026`, `18.06.2026` or `18-06-2026`: a
+/// date with the year last.
+fn day_month_year(s: &str) -> bool {
+    let parts: Vec<&str> = s.split(['/', '.', '-']).collect();
+    let digits = |p: &str, n: std::ops::RangeInclusive<usize>| {
+        n.contains(&p.len()) && p.bytes().all(|b| b.is_ascii_digit())
+    };
+    parts.len() == 3
+        && digits(parts[0], 1..=2)
+        && digits(parts[1], 1..=2)
+        && digits(parts[2], 4..=4)
+}
+
 /// Why a cell is not a usable number.
 #[derive(Debug, PartialEq, Eq)]
 pub(crate) enum NumberError {
@@ -224,6 +237,61 @@ pub(crate) fn parse_number(s: &str) -> Result<f64, NumberError> {
         Ok(_) => Err(NumberError::NotFinite),
         Err(_) => Err(NumberError::NotANumber),
     }
+}
+
+/// The header record mapped to the reader's columns; or `None`, with one
+/// problem for the whole file, when the first record is no header at all:
+///
+/// - a file separated by semicolons or tabs (a spreadsheet's regional
+///   export), seen as a first row with no known column name that splits
+///   into two or more known names at `;` or a tab;
+/// - a file whose first row is data (no header row), seen as a first row
+///   with no known column name and a cell that is a number or a date.
+///
+/// One line then says what is wrong, instead of a complaint for every cell
+/// of every row.
+pub(crate) fn header<'a>(
+    path: &'a str,
+    rec: &Record,
+    names: &'static [&'static str],
+    problems: &mut Vec<Problem>,
+) -> Option<Header<'a>> {
+    let cells: Vec<&str> = rec.cells.iter().map(str::trim).collect();
+    let known = |c: &str| names.contains(&c);
+    if !cells.iter().any(|c| known(c)) {
+        let whole = |message: String| Problem::at(plain_location(path, rec.line), message);
+        for (d, name) in [(';', "semicolons"), ('\t', "tabs")] {
+            let split = cells
+                .iter()
+                .flat_map(|c| c.split(d))
+                .filter(|c| known(c.trim()))
+                .count();
+            if split >= 2 {
+                let line: Vec<&str> = rec.cells.iter().collect();
+                problems.push(whole(format!(
+                    "expected comma-separated values, found a header separated by {name} ({}): \
+                     save or export the file as CSV with commas between cells and points in numbers",
+                    quoted(&line.join(","))
+                )));
+                return None;
+            }
+        }
+        let data = cells
+            .iter()
+            .any(|c| parse_number(c).is_ok() || parse_iso_date(c).is_ok());
+        if data {
+            let shown: Vec<String> = cells.iter().take(4).map(|c| quoted(c)).collect();
+            let more = if cells.len() > 4 { ", ..." } else { "" };
+            problems.push(whole(format!(
+                "expected a header row naming the columns ({}), found a data row ({}{more}): \
+                 the file has no header row; add one",
+                names.join(", "),
+                shown.join(", ")
+            )));
+            return None;
+        }
+    }
+    Some(Header::read(path, rec, names, problems))
 }
 
 /// A header row mapped to a reader's known columns.
@@ -412,7 +480,13 @@ impl<'h, 'r, 'p> Row<'h, 'r, 'p> {
         let line = self.header.line;
         let (column, header, tail) = if n < width {
             let name = self.header.field_name(n);
-            (n + 1, name, "the row ends before this column".to_string())
+            let cell = self.rec.cells.get(0).unwrap_or("");
+            let tail = match (n, cell.contains(';'), cell.contains('\t')) {
+                (1, true, _) => "the row is separated by semicolons, not commas",
+                (1, _, true) => "the row is separated by tabs, not commas",
+                _ => "the row ends before this column",
+            };
+            (n + 1, name, tail.to_string())
         } else {
             let extra: Vec<String> = self.rec.cells.iter().skip(width).map(quoted).collect();
             (width + 1, None, format!("extra cells {}", extra.join(", ")))
@@ -441,6 +515,23 @@ impl<'h, 'r, 'p> Row<'h, 'r, 'p> {
         }
     }
 
+    /// A required name or label that the output can print as it is: not
+    /// empty, and without a word the output guard reads as a number that
+    /// is not finite (`inf`, `NaN`: see [`crate::output::shows_non_finite`]).
+    pub fn name(&mut self, id: usize, what: &str) -> Option<&'r str> {
+        let s = self.text(id, what)?;
+        if let Some(word) = crate::output::shows_non_finite(s) {
+            let msg = format!(
+                "expected {what} without the word \"{word}\" (the output would show it where a \
+                 number that is not finite is refused), found {}",
+                quoted(s)
+            );
+            self.bad(id, msg);
+            return None;
+        }
+        Some(s)
+    }
+
     /// A required ISO 8601 date; `what` names it for an empty cell.
     pub fn date(&mut self, id: usize, what: &str) -> Option<NaiveDate> {
         let s = self.cell(id);
@@ -456,6 +547,8 @@ impl<'h, 'r, 'p> Row<'h, 'r, 'p> {
             Err(e) => {
                 let note = if e == DateError::NoSuchDay {
                     " (no such day)"
+                } else if day_month_year(s) {
+                    " (a day-month-year or month-day-year date: write it year first, as 2026-06-18)"
                 } else {
                     ""
                 };
@@ -658,6 +751,62 @@ mod tests {
     }
 
     const NAMES: &[&str] = &["a", "b", "c"];
+
+    /// The problems of reading `text`'s first record as a header.
+    fn header_problems(text: &str) -> (bool, Vec<String>) {
+        let mut problems = Vec::new();
+        let recs = records(text, "f.csv", &mut problems);
+        let read = header("f.csv", &recs[0], NAMES, &mut problems).is_some();
+        (read, problems.iter().map(|p| p.to_string()).collect())
+    }
+
+    #[test]
+    fn a_wrong_delimiter_or_a_data_row_is_one_problem() {
+        let (read, m) = header_problems("a;b;c\n1;2;3\n");
+        assert!(!read);
+        assert_eq!(
+            m,
+            [
+                "f.csv:1: expected comma-separated values, found a header separated by semicolons \
+              (\"a;b;c\"): save or export the file as CSV with commas between cells and points in \
+              numbers"
+            ]
+        );
+        let (read, m) = header_problems("a\tb\tc\n");
+        assert!(
+            !read && m.len() == 1 && m[0].contains("separated by tabs"),
+            "{m:?}"
+        );
+        let (read, m) = header_problems("2026-06-18,x,1.5\n");
+        assert!(!read);
+        assert_eq!(
+            m,
+            [
+                "f.csv:1: expected a header row naming the columns (a, b, c), found a data row \
+              (\"2026-06-18\", \"x\", \"1.5\"): the file has no header row; add one"
+            ]
+        );
+        // A header with one known name is a header, whatever else it has.
+        let (read, m) = header_problems("a,1\n");
+        assert!(read && m.len() == 1, "{m:?}");
+        // Unknown names that are not data: the usual per-column problems.
+        let (read, m) = header_problems("x,y\n");
+        assert!(read && m.len() == 2, "{m:?}");
+    }
+
+    #[test]
+    fn dates_written_day_or_month_first_get_a_hint() {
+        assert!(day_month_year("06/18/2026") && day_month_year("18.06.2026"));
+        assert!(day_month_year("1-6-2026"));
+        assert!(!day_month_year("2026/06/18") && !day_month_year("06/18/26"));
+        let mut problems = Vec::new();
+        let recs = records("a,b,c\n06/18/2026,,\n", "f.csv", &mut problems);
+        let h = Header::read("f.csv", &recs[0], NAMES, &mut problems);
+        Row::new(&h, &recs[1], &mut problems).date(0, "a date");
+        assert!(problems[0]
+            .message
+            .ends_with("write it year first, as 2026-06-18)"));
+    }
 
     #[test]
     fn header_names_unknown_repeated_and_missing_columns() {

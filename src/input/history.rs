@@ -9,12 +9,23 @@
 //! the reader lists every problem of the file at once):
 //! - the header has `period` and exactly one of the two layouts; no other
 //!   column, no column twice;
-//! - `period` is a non-empty label, unique in the file;
+//! - `period` is a non-empty label, unique in the file, without the word
+//!   `inf` or `NaN` (the output would refuse to print it);
 //! - `default_rate_pct` is a number in [0, 100];
-//! - `defaults` and `obligors` are whole numbers, `obligors` >= 1 and
-//!   `defaults` <= `obligors`;
+//! - `defaults` and `obligors` are whole numbers, `obligors` from 1 to
+//!   [`MAX_OBLIGORS`] and `defaults` <= `obligors`;
 //! - every row has as many cells as the header;
 //! - at least 3 periods.
+//!
+//! Two things are read but draw a warning ([`History::warnings`]), as they
+//! are more likely mistakes than data:
+//! - every rate of `default_rate_pct` below 0.1 (and one above 0): the
+//!   column is in percent, and fractions typed there (0.012 for 1.2%)
+//!   would read a hundred times too small;
+//! - a gap in the periods, when the labels are years (`2011`), months
+//!   (`2011-06`), quarters (`2011-Q2`), half years (`2011-H1`) or ISO dates
+//!   (a step more than one and a half times the usual one): the estimators
+//!   take the periods as they are.
 //!
 //! The file is read as every reader reads CSV: a UTF-8 byte-order mark is
 //! accepted, cells are trimmed, blank lines are skipped but counted, so a
@@ -24,6 +35,7 @@
 //! for a problem of the whole header or file).
 
 use super::cells::{self, invalid, quoted, Header, Row};
+use super::domain::MAX_OBLIGORS;
 use crate::error::{Error, ErrorKind, Problem, Result};
 use std::collections::HashMap;
 
@@ -71,6 +83,9 @@ pub struct History {
     pub kind: HistoryKind,
     /// The periods, in file order.
     pub periods: Vec<Period>,
+    /// Likely mistakes that do not stop the estimators: rates that look
+    /// like fractions, gaps in the periods (see the module docs).
+    pub warnings: Vec<Problem>,
 }
 
 impl History {
@@ -157,6 +172,7 @@ impl History {
             path,
             kind,
             periods,
+            warnings: Vec::new(),
         })
     }
 
@@ -232,7 +248,9 @@ pub fn parse_history(path: &str, text: &str) -> Result<History> {
         ));
         return Err(invalid(problems));
     };
-    let sheet = Header::read(path, header, &COLUMNS, &mut problems);
+    let Some(sheet) = cells::header(path, header, &COLUMNS, &mut problems) else {
+        return Err(invalid(problems));
+    };
     let has_period = sheet.require([PERIOD], &mut problems);
     let whole = |message: &str| Problem::at(sheet.plain(sheet.line), message);
     let layout = match (sheet.has(RATE), sheet.has(DEFAULTS), sheet.has(OBLIGORS)) {
@@ -280,11 +298,7 @@ pub fn parse_history(path: &str, text: &str) -> Result<History> {
         let line = row.line();
         let label = row.cell(PERIOD).to_string();
         let mut labelled = true;
-        if label.is_empty() {
-            row.bad(
-                PERIOD,
-                "expected a period label, found an empty cell".into(),
-            );
+        if row.name(PERIOD, "a period label").is_none() {
             labelled = false;
         } else if let Some(first) = first_line.get(&label) {
             let msg = format!(
@@ -359,10 +373,142 @@ pub fn parse_history(path: &str, text: &str) -> Result<History> {
             ),
         ));
     }
-    History::checked(path.to_string(), kind, periods)
+    let mut history = History::checked(path.to_string(), kind, periods)?;
+    history.warnings = fraction_warning(&sheet, &history)
+        .into_iter()
+        .chain(gap_warnings(&sheet, &history.periods))
+        .collect();
+    Ok(history)
 }
 
-/// A whole number of obligors or defaults.
+/// Below this, in percent, every rate of a file looks like a fraction.
+const FRACTION_LOOKALIKE_PCT: f64 = 0.1;
+
+/// The warning when every rate of `default_rate_pct` is below 0.1 and one
+/// is above 0.
+fn fraction_warning(sheet: &Header, h: &History) -> Option<Problem> {
+    if h.kind != HistoryKind::Rates {
+        return None;
+    }
+    let largest = h.periods.iter().map(|p| p.rate * 100.0).fold(0.0, f64::max);
+    if !(largest > 0.0 && largest < FRACTION_LOOKALIKE_PCT) {
+        return None;
+    }
+    let big = crate::output::significant(largest, 6);
+    let as_pct = crate::output::significant(largest * 100.0, 6);
+    Some(Problem::at(
+        sheet.at(sheet.line, RATE),
+        format!(
+            "every default rate is below 0.1 (the largest is {big}): the column is in percent, \
+             so they read as below 0.1%; if they are fractions ({big} meaning {as_pct}%), \
+             multiply them by 100"
+        ),
+    ))
+}
+
+/// A period label as a position on a regular calendar: years, months,
+/// quarters or half years count in their own steps; ISO dates in days.
+#[derive(Clone, Copy, PartialEq, Eq)]
+enum Scale {
+    Years,
+    Months,
+    Quarters,
+    Halves,
+    Days,
+}
+
+fn position(label: &str) -> Option<(Scale, i64)> {
+    let digits = |s: &str, n: usize| s.len() == n && s.bytes().all(|b| b.is_ascii_digit());
+    if digits(label, 4) {
+        return Some((Scale::Years, label.parse().ok()?));
+    }
+    if let Ok(d) = cells::parse_iso_date(label) {
+        use chrono::Datelike;
+        return Some((Scale::Days, i64::from(d.num_days_from_ce())));
+    }
+    let (y, rest) = label.split_once('-')?;
+    if !digits(y, 4) {
+        return None;
+    }
+    let y: i64 = y.parse().ok()?;
+    let sub = |prefix: &str, max: i64| -> Option<i64> {
+        let n = rest.strip_prefix(prefix)?;
+        let n: i64 = if digits(n, 1) || digits(n, 2) {
+            n.parse().ok()?
+        } else {
+            return None;
+        };
+        (1..=max).contains(&n).then_some(n)
+    };
+    if let Some(m) = sub("", 12).filter(|_| rest.len() == 2) {
+        return Some((Scale::Months, y * 12 + m - 1));
+    }
+    if let Some(q) = sub("Q", 4) {
+        return Some((Scale::Quarters, y * 4 + q - 1));
+    }
+    sub("H", 2).map(|h| (Scale::Halves, y * 2 + h - 1))
+}
+
+/// One warning per gap in the periods, when every label is on one scale.
+fn gap_warnings(sheet: &Header, periods: &[Period]) -> Vec<Problem> {
+    let Some(mut at) = periods
+        .iter()
+        .map(|p| position(&p.label).map(|(s, x)| (s, x, p)))
+        .collect::<Option<Vec<_>>>()
+    else {
+        return Vec::new();
+    };
+    let scale = at[0].0;
+    if at.iter().any(|a| a.0 != scale) {
+        return Vec::new();
+    }
+    at.sort_by_key(|a| a.1);
+    let steps: Vec<i64> = at.windows(2).map(|w| w[1].1 - w[0].1).collect();
+    // The usual step: 1 on a calendar scale; the median step between dates.
+    let usual = if scale == Scale::Days {
+        let mut s = steps.clone();
+        s.sort_unstable();
+        s[s.len() / 2]
+    } else {
+        1
+    };
+    let mut out = Vec::new();
+    for (w, step) in at.windows(2).zip(&steps) {
+        let gap = if scale == Scale::Days {
+            2 * step > 3 * usual
+        } else {
+            *step > 1
+        };
+        if !gap {
+            continue;
+        }
+        let (a, b) = (w[0].2, w[1].2);
+        let missing = match scale {
+            Scale::Days => format!(
+                "{step} days later where periods are usually {usual} days apart: a period \
+                 seems to be missing"
+            ),
+            Scale::Years if *step == 2 => format!("and {} is missing", w[0].1 + 1),
+            Scale::Years => format!("and {} to {} are missing", w[0].1 + 1, w[1].1 - 1),
+            _ if *step == 2 => "and one period is missing".to_string(),
+            _ => format!("and {} periods are missing", step - 1),
+        };
+        out.push(Problem::at(
+            sheet.at(b.line, PERIOD),
+            format!(
+                "a gap in the periods: {} (line {}) is followed by {} (line {}), {missing}; \
+                 the estimators take the periods as given, so check the file for a lost row",
+                quoted(&a.label),
+                a.line,
+                quoted(&b.label),
+                b.line
+            ),
+        ));
+    }
+    out
+}
+
+/// A whole number of obligors or defaults, at most [`MAX_OBLIGORS`].
 fn count(row: &mut Row, id: usize) -> Option<u64> {
     let s = row.cell(id);
     if s.is_empty() {
@@ -370,6 +516,14 @@ fn count(row: &mut Row, id: usize) -> Option<u64> {
         return None;
     }
     match s.parse::<u64>() {
+        Ok(n) if n > MAX_OBLIGORS => {
+            let msg = format!(
+                "expected a whole number up to {MAX_OBLIGORS} (a billion), found {}",
+                quoted(s)
+            );
+            row.bad(id, msg);
+            None
+        }
         Ok(n) => Some(n),
         Err(_) => {
             let msg = format!(
@@ -517,6 +671,84 @@ mod tests {
             m[0].starts_with("h.csv:5:2: column \"default_rate_pct\": "),
             "{m:?}"
         );
+    }
+
+    fn warnings(text: &str) -> Vec<String> {
+        let h = parse_history("h.csv", text).expect("history");
+        h.warnings.iter().map(|p| p.to_string()).collect()
+    }
+
+    #[test]
+    fn gaps_are_found_on_every_calendar_scale_and_in_any_order() {
+        // Consecutive labels, in any order: no warning.
+        for text in [
+            "period,default_rate_pct\n2012,1\n2010,1\n2011,1\n",
+            "period,default_rate_pct\n2011-11,1\n2011-12,1\n2012-01,1\n",
+            "period,default_rate_pct\n2011-Q3,1\n2011-Q4,1\n2012-Q1,1\n",
+            "period,default_rate_pct\n2011-H2,1\n2012-H1,1\n2012-H2,1\n",
+            "period,default_rate_pct\n2020-01-31,1\n2020-02-29,1\n2020-03-31,1\n2020-04-30,1\n",
+            // Labels that are not on one calendar: nothing to say.
+            "period,default_rate_pct\na,1\nb,1\nd,1\n",
+            "period,default_rate_pct\n2010,1\n2011-Q1,1\n2014,1\n",
+        ] {
+            assert_eq!(warnings(text), Vec::<String>::new(), "{text}");
+        }
+        for (text, says) in [
+            (
+                "period,default_rate_pct\n2012,1\n2010,1\n2013,1\n",
+                "and 2011 is missing",
+            ),
+            (
+                "period,default_rate_pct\n2011-11,1\n2012-02,1\n2012-03,1\n",
+                "and 2 periods are missing",
+            ),
+            (
+                "period,default_rate_pct\n2011-Q3,1\n2012-Q1,1\n2012-Q2,1\n",
+                "and one period is missing",
+            ),
+            (
+                "period,default_rate_pct\n2011-H1,1\n2012-H1,1\n2012-H2,1\n",
+                "and one period is missing",
+            ),
+            (
+                "period,default_rate_pct\n2020-01-31,1\n2020-02-29,1\n2020-04-30,1\n2020-05-31,1\n",
+                "61 days later where periods are usually 31 days apart",
+            ),
+        ] {
+            let w = warnings(text);
+            assert_eq!(w.len(), 1, "{text}: {w:?}");
+            assert!(w[0].contains(says), "{text}: {w:?}");
+        }
+        // The warning sits at the later period's line, naming both.
+        assert_eq!(
+            warnings("period,default_rate_pct\n2012,1\n2010,1\n2013,1\n"),
+            ["h.csv:2:1: column \"period\": a gap in the periods: \"2010\" (line 3) is followed \
+              by \"2012\" (line 2), and 2011 is missing; the estimators take the periods as given, \
+              so check the file for a lost row"]
+        );
+    }
+
+    #[test]
+    fn rates_that_look_like_fractions_draw_one_warning() {
+        let w = warnings("period,default_rate_pct\n1,0.012\n2,0.05\n3,0\n");
+        assert_eq!(w.len(), 1, "{w:?}");
+        assert!(w[0].starts_with("h.csv:1:2: column \"default_rate_pct\": every default rate is below 0.1 (the largest is 0.05)"));
+        // One rate of 0.1% or more, all zeros, or counts: no warning.
+        assert!(warnings("period,default_rate_pct\n1,0.012\n2,0.1\n3,0\n").is_empty());
+        assert!(warnings("period,default_rate_pct\n1,0\n2,0\n3,0\n").is_empty());
+        assert!(warnings("period,defaults,obligors\n1,0,1000\n2,1,1000\n3,0,1000\n").is_empty());
+    }
+
+    #[test]
+    fn counts_stop_at_a_billion_obligors() {
+        let m = messages(
+            "period,defaults,obligors\n1,0,1000000001\n2,0,18446744073709551615\n3,0,10\n",
+        );
+        assert_eq!(m.len(), 2, "{m:?}");
+        assert!(m[0].starts_with(
+            "h.csv:2:3: column \"obligors\": expected a whole number up to 1000000000"
+        ));
+        assert!(messages("period,defaults,obligors\n1,0,1000000000\n2,0,10\n3,0,10\n").is_empty());
     }
 
     #[test]

@@ -12,6 +12,7 @@
 //! `path:line:col: column "name": expected X, found Y`.
 
 mod cells;
+pub mod domain;
 pub mod history;
 pub mod pools;
 pub mod snapshot;
@@ -34,6 +35,25 @@ pub fn read_source(path: &str) -> Result<String> {
         std::fs::File::open(path).and_then(|mut f| f.read_to_end(&mut bytes).map(|_| ()))
     };
     res.map_err(|e| Error::msg(ErrorKind::Io, format!("{path}: cannot read: {e}")))?;
+    decode(bytes, path)
+}
+
+/// The text of an input file's bytes, which must be UTF-8 (what
+/// [`read_source`] does once the bytes are read); `path` names the file in
+/// the message.
+///
+/// # Errors
+/// [`ErrorKind::InvalidInput`] at the line and column of the first byte
+/// that is not UTF-8 (a Latin-1 or Windows-1252 export, say).
+///
+/// ```
+/// use skewbook::input::decode;
+/// assert_eq!(decode(b"a,b\n".to_vec(), "f.csv")?, "a,b\n");
+/// let e = decode(b"a,b\nx,\xe9\n".to_vec(), "f.csv").unwrap_err();
+/// assert!(e.to_string().starts_with("f.csv:2:3: expected UTF-8 text, found the byte 0xe9"));
+/// # Ok::<(), skewbook::Error>(())
+/// ```
+pub fn decode(bytes: Vec<u8>, path: &str) -> Result<String> {
     String::from_utf8(bytes).map_err(|e| {
         let good = &e.as_bytes()[..e.utf8_error().valid_up_to()];
         let line = good.iter().filter(|&&b| b == b'\n').count() as u64 + 1;

@@ -11,8 +11,8 @@
 //! | `pool` | the pool's name | text, not empty, not `index` (the snapshot's own pool) |
 //! | `maturity` | maturity of the quoted pool contract | ISO 8601 date `YYYY-MM-DD`; one quote per pool and maturity |
 //! | `quote_kind` | how the quote is expressed | `spread_bp` or `upfront_pct` |
-//! | `quote` | the quote | bp for `spread_bp` (above 0); percent for `upfront_pct` (above -100, below 100) |
-//! | `coupon_bp` | running coupon of an `upfront_pct` quote | bp per year, >= 0; empty on `spread_bp` rows; the column may be left out when no row is `upfront_pct` |
+//! | `quote` | the quote | bp for `spread_bp` (above 0, below 100000); percent for `upfront_pct` (above -100, below 100) |
+//! | `coupon_bp` | running coupon of an `upfront_pct` quote | bp per year, 0 <= c < 100000; empty on `spread_bp` rows; the column may be left out when no row is `upfront_pct` |
 //! | `recovery_pct` | the pool's recovery | percent, 0 up to (not including) 100; the same on every row of a pool |
 //!
 //! Then one quote a row, pools and maturities in any order. Units change
@@ -120,12 +120,14 @@ pub fn read_pools(path: &str) -> Result<Pools> {
 ///   pool rows");
 /// - a row with more or fewer cells than the header;
 /// - a required cell left empty, or a coupon on a `spread_bp` row;
-/// - a pool named `index`; a `quote_kind` other than `spread_bp` or
+/// - a pool named `index`, or with the word `inf` or `NaN` in its name (the
+///   output would refuse to print it); a `quote_kind` other than `spread_bp` or
 ///   `upfront_pct`;
 /// - a date that is not ISO 8601 `YYYY-MM-DD`, a number that does not
 ///   parse, or is NaN or infinite;
-/// - a spread not above 0, an upfront outside (-100, 100) percent, a
-///   negative coupon, a recovery outside [0, 100) percent;
+/// - a number outside its plausible domain (see [`super::domain`]): a
+///   spread outside (0, 100000) bp, an upfront outside (-100, 100) percent,
+///   a coupon outside [0, 100000) bp, a recovery outside [0, 100) percent;
 /// - a second quote of one pool for the same maturity (the message names
 ///   both lines);
 /// - rows of one pool that disagree on the recovery (at the later row).
@@ -153,7 +155,9 @@ pub fn parse_pools(text: &str, path: &str) -> Result<Pools> {
         problems.push(cells::empty_file(path, "pool"));
         return Err(invalid(problems));
     };
-    let sheet = Header::read(path, header, &COLUMNS, &mut problems);
+    let Some(sheet) = cells::header(path, header, &COLUMNS, &mut problems) else {
+        return Err(invalid(problems));
+    };
     if !sheet.require(REQUIRED, &mut problems) {
         return Err(invalid(problems));
     }
@@ -209,7 +213,7 @@ struct PoolRow<'r> {
 
 /// Checks one row; `Some` only when every cell is right.
 fn pool_row<'r>(mut row: Row<'_, 'r, '_>) -> Option<PoolRow<'r>> {
-    let pool = row.text(POOL, "a pool name");
+    let pool = row.name(POOL, "a pool name");
     if pool == Some(INDEX_POOL) {
         row.bad(
             POOL,
@@ -222,21 +226,16 @@ fn pool_row<'r>(mut row: Row<'_, 'r, '_>) -> Option<PoolRow<'r>> {
         .one_of(QUOTE_KIND, &["spread_bp", "upfront_pct"])
         .map(|k| k == 1);
     let quote = match upfront {
-        Some(false) => row.checked(QUOTE, "a spread in bp", "a spread above 0 bp", |v| v > 0.0),
-        Some(true) => row.checked(
-            QUOTE,
-            "an upfront in percent",
-            "an upfront above -100 and below 100 percent",
-            |v| v > -100.0 && v < 100.0,
-        ),
+        Some(false) => row.spread_bp(QUOTE, "a spread in bp", true),
+        Some(true) => row
+            .number(QUOTE, "an upfront in percent")
+            .and_then(|v| row.upfront_pct(QUOTE, v)),
         None => row.number(QUOTE, "a quote"),
     };
     let coupon = match upfront {
-        Some(true) if row.header.has(COUPON) => row.checked(
+        Some(true) if row.header.has(COUPON) => row.coupon_bp(
             COUPON,
             "a running coupon in bp (upfront_pct quotes need one)",
-            "a coupon of 0 bp or more",
-            |v| v >= 0.0,
         ),
         Some(true) => None, // reported once, at the header
         Some(false) => {
@@ -249,12 +248,7 @@ fn pool_row<'r>(mut row: Row<'_, 'r, '_>) -> Option<PoolRow<'r>> {
         }
         None => None,
     };
-    let recovery = row.checked(
-        RECOVERY,
-        "a recovery in percent",
-        "a recovery from 0 up to (not including) 100 percent",
-        |v| (0.0..100.0).contains(&v),
-    );
+    let recovery = row.recovery_pct(RECOVERY);
     if !row.ok {
         return None;
     }

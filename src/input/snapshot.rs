@@ -104,9 +104,12 @@ pub fn read_snapshot(path: &str) -> Result<Snapshot> {
 ///   `spread_bp` or `upfront_pct`);
 /// - a date that is not ISO 8601 `YYYY-MM-DD`, a number that does not
 ///   parse, or is NaN or infinite;
-/// - a negative spread or coupon, an upfront or zero rate outside
-///   (-100, 100) percent, bounds outside [0, 100] percent or an attachment
-///   not below its detachment, a recovery outside [0, 100) percent;
+/// - a number outside its plausible domain (see [`super::domain`]): a
+///   spread or coupon outside [0, 100000) bp, an upfront outside (-100,
+///   100) percent, a zero rate outside (-50, 50) percent, an attachment
+///   neither 0 nor in [0.01, 100] percent, a detachment outside [0.01, 100]
+///   percent or less than 0.01 percent above its attachment, a recovery
+///   outside [0, 100) percent;
 /// - a maturity (pillar date) on or before the trade date;
 /// - two quotes of one date for the same instrument, maturity and bounds;
 /// - index rows of one date that disagree on the recovery (an empty cell
@@ -137,7 +140,9 @@ pub fn parse_snapshot(text: &str, path: &str) -> Result<Snapshot> {
         problems.push(cells::empty_file(path, "quote"));
         return Err(invalid(problems));
     };
-    let sheet = Header::read(path, header, &COLUMNS, &mut problems);
+    let Some(sheet) = cells::header(path, header, &COLUMNS, &mut problems) else {
+        return Err(invalid(problems));
+    };
     // Rows cannot be read without every required column; unknown and
     // repeated names are reported but rows are still checked.
     if !sheet.require(REQUIRED, &mut problems) {
@@ -292,56 +297,21 @@ fn row(mut c: Cells) -> Option<Row> {
         Some(Kind::ZeroRate) => "a zero rate in percent",
         None => "a quote",
     };
-    let raw = c.number(QUOTE, what);
-    let quote = match (kind, raw) {
-        (Some(Kind::Spread), Some(v)) => {
-            c.within(QUOTE, v, "a spread of 0 bp or more", |v| v >= 0.0)
+    let quote = match kind {
+        Some(Kind::Spread) => c.spread_bp(QUOTE, what, false),
+        Some(Kind::Upfront) => c.number(QUOTE, what).and_then(|v| c.upfront_pct(QUOTE, v)),
+        Some(Kind::ZeroRate) => c
+            .number(QUOTE, what)
+            .and_then(|v| c.zero_rate_pct(QUOTE, v)),
+        None => {
+            c.number(QUOTE, what);
+            None
         }
-        (Some(Kind::Upfront), Some(v)) => c.within(
-            QUOTE,
-            v,
-            "an upfront above -100 and below 100 percent",
-            |v| v > -100.0 && v < 100.0,
-        ),
-        (Some(Kind::ZeroRate), Some(v)) => c.within(
-            QUOTE,
-            v,
-            "a zero rate above -100 and below 100 percent",
-            |v| v > -100.0 && v < 100.0,
-        ),
-        _ => None,
     };
 
     let mut bounds = None;
     match instrument {
-        Some(Instrument::Tranche) => {
-            let in_range = |v: f64| (0.0..=100.0).contains(&v);
-            let a = c.checked(
-                ATTACH,
-                "an attachment in percent",
-                "an attachment from 0 to 100 percent",
-                in_range,
-            );
-            let d = c.checked(
-                DETACH,
-                "a detachment in percent",
-                "a detachment from 0 to 100 percent",
-                in_range,
-            );
-            if let (Some(a), Some(d)) = (a, d) {
-                if a >= d {
-                    let msg = format!(
-                        "expected a detachment above the attachment {} (column {}), found {}",
-                        quoted(c.cell(ATTACH)),
-                        c.header.col(ATTACH).map_or(0, |i| i + 1),
-                        quoted(c.cell(DETACH))
-                    );
-                    c.bad(DETACH, msg);
-                } else {
-                    bounds = Some((a, d));
-                }
-            }
-        }
+        Some(Instrument::Tranche) => bounds = c.bounds_pct(ATTACH, DETACH),
         Some(i) => {
             let row = i.article();
             c.empty(ATTACH, row, "bounds go on tranche rows");
@@ -353,11 +323,9 @@ fn row(mut c: Cells) -> Option<Row> {
     let mut coupon = None;
     match kind {
         Some(Kind::Upfront) => {
-            coupon = c.checked(
+            coupon = c.coupon_bp(
                 COUPON,
                 "a running coupon in bp (upfront_pct quotes need one)",
-                "a coupon of 0 bp or more",
-                |v| v >= 0.0,
             );
         }
         Some(k) => {
@@ -374,12 +342,7 @@ fn row(mut c: Cells) -> Option<Row> {
     let mut recovery = None;
     match instrument {
         Some(Instrument::Index) if !c.cell(RECOVERY).is_empty() => {
-            let r = c.checked(
-                RECOVERY,
-                "a recovery in percent",
-                "a recovery from 0 up to (not including) 100 percent",
-                |v| (0.0..100.0).contains(&v),
-            );
+            let r = c.recovery_pct(RECOVERY);
             recovery = r.map(|r| (r / 100.0, c.cell(RECOVERY).to_string()));
         }
         Some(Instrument::Index) => {}

@@ -9,10 +9,10 @@
 //! | `trade_id` | the trade's name | text, not empty, unique in the file |
 //! | `pool` | the pool the tranche is written on | `index` (the snapshot's pool) or a pool of the pools file |
 //! | `maturity` | the tranche's maturity | ISO 8601 date `YYYY-MM-DD`, after the trade date |
-//! | `attach_pct` | attachment | percent of pool notional, 0 <= A < D |
-//! | `detach_pct` | detachment | percent of pool notional, A < D <= 100 |
-//! | `coupon_bp` | running coupon | bp per year, >= 0 |
-//! | `notional` | tranche notional | currency amount, > 0 |
+//! | `attach_pct` | attachment | percent of pool notional: 0, or 0.01 <= A < D |
+//! | `detach_pct` | detachment | percent of pool notional, A + 0.01 <= D <= 100 |
+//! | `coupon_bp` | running coupon | bp per year, 0 <= c < 100000 |
+//! | `notional` | tranche notional | currency amount, 0 < N < 1e15 |
 //! | `side` | the holder's side | `buy` (protection buyer) or `sell` (protection seller) |
 //!
 //! Then one trade a row, in any order; the order of the file is kept.
@@ -40,7 +40,7 @@
 //! known, depend on the snapshot and the pools file: [`check_against`]
 //! makes those checks, at the same file positions, once they are read.
 
-use super::cells::{self, invalid, quoted, Header, Row};
+use super::cells::{self, invalid, quoted, Row};
 use crate::error::{Location, Problem, Result};
 use chrono::NaiveDate;
 use std::collections::HashMap;
@@ -65,8 +65,7 @@ const COUPON: usize = 5;
 const NOTIONAL: usize = 6;
 const SIDE: usize = 7;
 
-/// The pool name that means the snapshot's own index pool.
-pub const INDEX_POOL: &str = "index";
+pub use crate::market::INDEX_POOL;
 
 /// The holder's side of a trade.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -152,12 +151,15 @@ pub fn read_trades(path: &str) -> Result<Trades> {
 ///   required); an empty file or a header with no rows after it ("no trade
 ///   rows");
 /// - a row with more or fewer cells than the header;
-/// - an empty cell;
+/// - an empty cell; a `trade_id` or `pool` with the word `inf` or `NaN`
+///   in it (the output would refuse to print it);
 /// - a `trade_id` seen on an earlier line (the message names it);
 /// - a maturity that is not an ISO 8601 `YYYY-MM-DD` date;
 /// - a number that does not parse, or is NaN or infinite;
-/// - bounds outside [0, 100] percent or an attachment not below its
-///   detachment; a negative coupon; a notional not above 0;
+/// - a number outside its plausible domain (see [`super::domain`]): an
+///   attachment neither 0 nor in [0.01, 100] percent, a detachment outside
+///   [0.01, 100] percent or less than 0.01 percent above the attachment, a
+///   coupon outside [0, 100000) bp, a notional outside (0, 1e15);
 /// - a `side` other than `buy` or `sell`.
 ///
 /// # Examples
@@ -181,7 +183,9 @@ pub fn parse_trades(text: &str, path: &str) -> Result<Trades> {
         problems.push(cells::empty_file(path, "trade"));
         return Err(invalid(problems));
     };
-    let sheet = Header::read(path, header, &COLUMNS, &mut problems);
+    let Some(sheet) = cells::header(path, header, &COLUMNS, &mut problems) else {
+        return Err(invalid(problems));
+    };
     if !sheet.require(0..COLUMNS.len(), &mut problems) {
         return Err(invalid(problems));
     }
@@ -197,7 +201,7 @@ pub fn parse_trades(text: &str, path: &str) -> Result<Trades> {
         if !row.width() {
             continue;
         }
-        let id = row.text(TRADE_ID, "a trade id");
+        let id = row.name(TRADE_ID, "a trade id");
         if let Some(id) = id {
             if let Some(first) = first_line.get(id) {
                 let msg = format!(
@@ -227,44 +231,11 @@ pub fn parse_trades(text: &str, path: &str) -> Result<Trades> {
 /// Checks the cells of a row after its id; `Some` only when the whole row
 /// is right.
 fn trade(mut row: Row, id: Option<&str>) -> Option<Trade> {
-    let pool = row.text(POOL, "a pool name (\"index\" or a pool of the pools file)");
+    let pool = row.name(POOL, "a pool name (\"index\" or a pool of the pools file)");
     let maturity = row.date(MATURITY, "a maturity date");
-    let in_range = |v: f64| (0.0..=100.0).contains(&v);
-    let attach = row.checked(
-        ATTACH,
-        "an attachment in percent",
-        "an attachment from 0 to 100 percent",
-        in_range,
-    );
-    let detach = row.checked(
-        DETACH,
-        "a detachment in percent",
-        "a detachment from 0 to 100 percent",
-        in_range,
-    );
-    if let (Some(a), Some(d)) = (attach, detach) {
-        if a >= d {
-            let msg = format!(
-                "expected a detachment above the attachment {} (column {}), found {}",
-                quoted(row.cell(ATTACH)),
-                row.header.col(ATTACH).map_or(0, |i| i + 1),
-                quoted(row.cell(DETACH))
-            );
-            row.bad(DETACH, msg);
-        }
-    }
-    let coupon = row.checked(
-        COUPON,
-        "a running coupon in bp",
-        "a coupon of 0 bp or more",
-        |v| v >= 0.0,
-    );
-    let notional = row.checked(
-        NOTIONAL,
-        "a notional (a currency amount)",
-        "a notional above 0",
-        |v| v > 0.0,
-    );
+    let bounds = row.bounds_pct(ATTACH, DETACH);
+    let coupon = row.coupon_bp(COUPON, "a running coupon in bp");
+    let notional = row.notional(NOTIONAL);
     let side = row.one_of(SIDE, &["buy", "sell"]);
     if !row.ok {
         return None;
@@ -273,8 +244,8 @@ fn trade(mut row: Row, id: Option<&str>) -> Option<Trade> {
         trade_id: id?.to_string(),
         pool: pool?.to_string(),
         maturity: maturity?,
-        attach: attach? / 100.0,
-        detach: detach? / 100.0,
+        attach: bounds?.0 / 100.0,
+        detach: bounds?.1 / 100.0,
         coupon: coupon? / 1e4,
         notional: notional?,
         side: [Side::Buy, Side::Sell][side?],

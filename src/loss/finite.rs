@@ -125,10 +125,8 @@ use super::{BaseExpectation, BaseTranche, Cap, Correlation, Expectation, Horizon
 use crate::error::{Error, ErrorKind, Result};
 use crate::math::normal::{cdf as norm_cdf, pdf};
 use gauss_quad::legendre::GaussLegendre;
-use std::cell::RefCell;
 use std::num::NonZeroUsize;
-use std::rc::Rc;
-use std::sync::OnceLock;
+use std::sync::{Arc, Mutex, OnceLock};
 
 /// Gauss-Legendre points per panel of the factor rule.
 pub const NODES: usize = 14;
@@ -197,9 +195,8 @@ impl PoolModel {
 
 /// A homogeneous pool of `n` names with what every evaluation reuses: the
 /// binomial recurrence's ratios, the Gauss-Legendre rule, and the tables
-/// of `f(N(v))` per base tranche (built on first use; not thread-safe, so
-/// one pool per thread).
-#[derive(Debug, Clone)]
+/// of `f(N(v))` per base tranche (built on first use, shared by clones).
+#[derive(Debug)]
 pub struct FinitePool {
     names: usize,
     /// `(n - 1 - k) / (k + 1)`, k = 0 .. n - 2: ratios of binomial(n - 1, .) terms.
@@ -211,7 +208,20 @@ pub struct FinitePool {
     /// Smallest `1 - p` for which `(1 - p)^(n - 1)` stays above 1e-300.
     q_floor: f64,
     /// Tables of `F(v) = f(N(v))` per (unit, cap), built on first use.
-    tables: RefCell<Vec<Rc<Table>>>,
+    tables: Mutex<Vec<Arc<Table>>>,
+}
+
+impl Clone for FinitePool {
+    fn clone(&self) -> FinitePool {
+        FinitePool {
+            names: self.names,
+            ratios: self.ratios.clone(),
+            ln_choose: self.ln_choose.clone(),
+            rule: self.rule.clone(),
+            q_floor: self.q_floor,
+            tables: Mutex::new(self.tables().clone()),
+        }
+    }
 }
 
 impl PartialEq for FinitePool {
@@ -308,7 +318,7 @@ impl FinitePool {
             ln_choose,
             rule: None,
             q_floor,
-            tables: RefCell::default(),
+            tables: Mutex::default(),
         })
     }
 
@@ -545,18 +555,26 @@ impl FinitePool {
     }
 
     /// The table of `F(v) = f(N(v))` for this unit and cap, built on first use.
-    fn table(&self, unit: f64, cap: f64, kink: &Cap) -> Rc<Table> {
+    fn table(&self, unit: f64, cap: f64, kink: &Cap) -> Arc<Table> {
         let key = (unit.to_bits(), cap.to_bits());
-        if let Some(t) = self.tables.borrow().iter().find(|t| t.key == key) {
-            return Rc::clone(t);
+        if let Some(t) = self.tables().iter().find(|t| t.key == key) {
+            return Arc::clone(t);
         }
-        let t = Rc::new(self.build_table(unit, cap, kink));
-        let mut tables = self.tables.borrow_mut();
+        let t = Arc::new(self.build_table(unit, cap, kink));
+        let mut tables = self.tables();
         if tables.len() >= MAX_TABLES {
             tables.remove(0);
         }
-        tables.push(Rc::clone(&t));
+        tables.push(Arc::clone(&t));
         t
+    }
+
+    /// The tables, whatever another thread left (a table is complete
+    /// before it is pushed, so a poisoned lock holds only whole tables).
+    fn tables(&self) -> std::sync::MutexGuard<'_, Vec<Arc<Table>>> {
+        self.tables
+            .lock()
+            .unwrap_or_else(std::sync::PoisonError::into_inner)
     }
 
     fn build_table(&self, unit: f64, cap: f64, kink: &Cap) -> Table {

@@ -80,18 +80,20 @@ pub use finite::{FinitePool, PoolModel};
 
 use crate::error::{Error, ErrorKind, Result};
 use crate::math::bvn::Bvn;
-use crate::math::normal::inv_cdf;
+use crate::math::normal::{cdf as norm_cdf, inv_cdf, pdf};
 
-/// One horizon of the pool: default probability and its normal threshold.
+/// One horizon of the pool: default probability, its normal threshold, and
+/// the normal CDF at `±c` that the closed form reads at every correlation.
 ///
-/// Build it with [`Horizon::new`] so that `c = G(pd)` holds; the fields are
-/// public for callers that already have both.
+/// Build it with [`Horizon::new`] so that `c = G(pd)` holds.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct Horizon {
     /// Pool default probability `PD(t)`, in `[0, 1]`.
     pub pd: f64,
     /// `c = G(PD)`, the inverse normal CDF of `pd` (`-inf` at 0, `+inf` at 1).
     pub c: f64,
+    /// `N(c)` (equal to `pd` up to rounding) and `N(-c)`.
+    n_c: (f64, f64),
 }
 
 impl Horizon {
@@ -112,11 +114,17 @@ impl Horizon {
     /// ```
     pub fn new(pd: f64) -> Result<Horizon> {
         check_fraction("default probability", pd)?;
-        Ok(Horizon { pd, c: inv_cdf(pd) })
+        let c = inv_cdf(pd);
+        Ok(Horizon {
+            pd,
+            c,
+            n_c: (norm_cdf(c), norm_cdf(-c)),
+        })
     }
 }
 
-/// A cap `k` on the default fraction `p` and its threshold `G(k)`.
+/// A cap `k` on the default fraction `p`, its threshold `G(k)` and the
+/// normal density there.
 ///
 /// For a base tranche `[0, K]` the loss side uses `k = K / (1 - R)` and the
 /// recovery side `k = (1 - K) / R`.
@@ -126,6 +134,8 @@ pub struct Cap {
     pub k: f64,
     /// `G(k)`: `-inf` for `k <= 0`, `+inf` for `k >= 1`.
     pub g: f64,
+    /// `phi(G(k))`, a factor of every rho-derivative at this cap.
+    phi_g: f64,
 }
 
 impl Cap {
@@ -139,7 +149,12 @@ impl Cap {
     /// assert_eq!(Cap::new(2.0).g, f64::INFINITY);
     /// ```
     pub fn new(k: f64) -> Cap {
-        Cap { k, g: inv_cdf(k) }
+        let g = inv_cdf(k);
+        Cap {
+            k,
+            g,
+            phi_g: pdf(g),
+        }
     }
 }
 
@@ -149,12 +164,15 @@ impl Cap {
 ///
 /// A tranche valuation at one correlation calls the closed form for every
 /// horizon and both caps of both base tranches; building this once per
-/// `rho` keeps the per-call cost at one [`Bvn::cdf`] and one normal CDF.
+/// `rho` keeps the per-call cost at one [`Bvn::cdf_with`], one normal CDF
+/// and one exponential.
 #[derive(Debug, Clone)]
 pub struct Correlation {
     rho: f64,
     sr: f64,
     s1: f64,
+    /// `2 sqrt(rho) sqrt(1 - rho)`, the derivative's denominator.
+    two_sr_s1: f64,
     bvn: Bvn,
 }
 
@@ -171,10 +189,12 @@ impl Correlation {
     pub fn new(rho: f64) -> Correlation {
         let rho = rho.clamp(0.0, 1.0);
         let sr = rho.sqrt();
+        let s1 = (1.0 - rho).sqrt();
         Correlation {
             rho,
             sr,
-            s1: (1.0 - rho).sqrt(),
+            s1,
+            two_sr_s1: 2.0 * sr * s1,
             bvn: Bvn::new(-sr),
         }
     }
@@ -233,13 +253,7 @@ pub struct Expectation {
 /// ```
 pub fn expected_min(h: &Horizon, cap: &Cap, rho: f64, method: Method) -> Expectation {
     match method {
-        Method::ClosedForm => {
-            let corr = Correlation::new(rho);
-            Expectation {
-                value: closed::value_at(h, cap, &corr),
-                drho: closed::drho_at(h, cap, &corr),
-            }
-        }
+        Method::ClosedForm => closed::expectation_at(h, cap, &Correlation::new(rho)),
         Method::Quadrature => quadrature::value_and_drho(h, cap, rho),
     }
 }
@@ -378,24 +392,59 @@ impl BaseTranche {
     /// ```
     #[inline]
     pub fn closed_form(&self, h: &Horizon, corr: &Correlation) -> BaseExpectation {
-        self.assemble(h, |cap| Expectation {
-            value: closed::value_at(h, cap, corr),
-            drho: closed::drho_at(h, cap, corr),
-        })
+        self.assemble_sides(
+            h,
+            || closed::expectation_at(h, &self.loss_cap, corr),
+            || {
+                // A cap at or above 1 caps nothing: E[min(p, k)] = PD for
+                // every rho (the edge case of the closed form, without its
+                // checks). So for every K up to 1 - R on the recovery side.
+                if self.recovery_cap.k >= 1.0 {
+                    Expectation {
+                        value: if h.pd <= 0.0 { 0.0 } else { h.pd },
+                        drho: 0.0,
+                    }
+                } else {
+                    closed::expectation_at(h, &self.recovery_cap, corr)
+                }
+            },
+        )
     }
 
     #[inline]
     fn assemble(&self, h: &Horizon, expect: impl Fn(&Cap) -> Expectation) -> BaseExpectation {
+        self.assemble_sides(h, || expect(&self.loss_cap), || expect(&self.recovery_cap))
+    }
+
+    /// Whether the loss side has an expectation to take (`K > 0`, `R < 1`).
+    fn has_loss_side(&self) -> bool {
+        1.0 - self.recovery > 0.0 && self.detach > 0.0
+    }
+
+    /// Whether the recovery side has an expectation to take (`K < 1`, `R > 0`).
+    fn has_recovery_side(&self) -> bool {
+        self.recovery > 0.0 && self.detach < 1.0
+    }
+
+    /// The base tranche's expectation from those of its loss side and
+    /// recovery side (each asked for only when that side exists).
+    #[inline]
+    fn assemble_sides(
+        &self,
+        h: &Horizon,
+        loss_side: impl FnOnce() -> Expectation,
+        recovery_side: impl FnOnce() -> Expectation,
+    ) -> BaseExpectation {
         let (r, k) = (self.recovery, self.detach);
         let lgd = 1.0 - r;
-        let (loss, dloss) = if lgd > 0.0 && k > 0.0 {
-            let e = expect(&self.loss_cap);
+        let (loss, dloss) = if self.has_loss_side() {
+            let e = loss_side();
             (lgd * e.value, lgd * e.drho)
         } else {
             (0.0, 0.0)
         };
-        let (capped_rec, dcapped_rec) = if r > 0.0 && k < 1.0 {
-            let e = expect(&self.recovery_cap);
+        let (capped_rec, dcapped_rec) = if self.has_recovery_side() {
+            let e = recovery_side();
             (r * e.value, r * e.drho)
         } else {
             (0.0, 0.0)

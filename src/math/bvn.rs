@@ -49,6 +49,8 @@
 //! - R. L. Plackett, "A reduction formula for normal multivariate
 //!   integrals", Biometrika 41 (1954) 351-360.
 
+use super::erfc;
+use super::exp::exp_in_place;
 use super::normal::cdf as norm_cdf;
 
 use std::f64::consts::PI;
@@ -311,38 +313,171 @@ impl Bvn {
     /// ```
     #[inline]
     pub fn cdf(&self, h: f64, k: f64) -> f64 {
-        if h.is_nan() || k.is_nan() {
-            return f64::NAN;
-        }
-        if h <= -FAR || k <= -FAR {
-            return 0.0;
-        }
-        if h >= FAR {
-            return if k >= FAR { 1.0 } else { norm_cdf(k) };
-        }
-        if k >= FAR {
-            return norm_cdf(h);
-        }
-        self.upper(-h, -k).clamp(0.0, 1.0)
+        self.cdf_by(h, k, &OnDemand { h, k })
     }
 
-    /// `P(X > h, Y > k)` for `|h|, |k| < FAR`; Genz's BVND.
-    fn upper(&self, h: f64, k: f64) -> f64 {
-        let hk = h * k;
+    /// [`Bvn::cdf`] with the normal CDF at `h`, `-h`, `k` and `-k` already
+    /// known: the tranche pricer keeps them per horizon and per bound, so a
+    /// call costs the node sum and at most one more normal CDF.
+    ///
+    /// # Formula
+    ///
+    /// See [`bvn_cdf`]; `tails` must hold `N(h)`, `N(-h)`, `N(k)`, `N(-k)`.
+    ///
+    /// # References
+    ///
+    /// A. Genz (2004), Statistics and Computing 14.
+    ///
+    /// # Example
+    ///
+    /// ```
+    /// use skewbook::math::bvn::{Bvn, Tails};
+    /// use skewbook::math::normal::cdf;
+    /// let (h, k) = (-1.0, 0.5);
+    /// let tails = Tails { h: cdf(h), minus_h: cdf(-h), k: cdf(k), minus_k: cdf(-k) };
+    /// let at = Bvn::new(-0.6);
+    /// assert_eq!(at.cdf_with(h, k, &tails), at.cdf(h, k));
+    /// ```
+    #[inline]
+    pub fn cdf_with(&self, h: f64, k: f64, tails: &Tails) -> f64 {
+        self.cdf_by(h, k, tails)
+    }
+
+    #[inline]
+    fn cdf_by(&self, h: f64, k: f64, n: &impl NormalAt) -> f64 {
+        if let Some(v) = self.edge(h, k, n) {
+            return v;
+        }
+        // upper(-h, -k): its "N(-h')" is N(h), and so on.
+        self.upper(-h, -k, &Negated(n)).clamp(0.0, 1.0)
+    }
+
+    /// The value where no node sum is needed (NaN or a bound beyond
+    /// [`FAR`]), else `None`.
+    #[inline]
+    fn edge(&self, h: f64, k: f64, n: &impl NormalAt) -> Option<f64> {
+        if h.is_nan() || k.is_nan() {
+            Some(f64::NAN)
+        } else if h <= -FAR || k <= -FAR {
+            Some(0.0)
+        } else if h >= FAR {
+            Some(if k >= FAR { 1.0 } else { n.k() })
+        } else if k >= FAR {
+            Some(n.h())
+        } else {
+            None
+        }
+    }
+
+    /// Whether `Phi2(h, k; r)` takes the node sum (no NaN, no bound beyond
+    /// [`FAR`]); when not, [`Bvn::cdf_from`] reads no exponential.
+    #[inline]
+    pub(crate) fn needs_nodes(&self, h: f64, k: f64) -> bool {
+        !(h.is_nan() || k.is_nan() || h.abs() >= FAR || k.abs() >= FAR)
+    }
+
+    /// How many exponentials [`Bvn::cdf_from`] takes: one per node in the
+    /// angle form; in the series form two per node, two outside the sum and
+    /// two of the normal CDF in it; none otherwise.
+    pub(crate) fn exponentials(&self) -> usize {
         match self.form {
-            Form::Independent => return norm_cdf(-h) * norm_cdf(-k),
+            Form::Angle => self.len,
+            Form::Series => 2 * self.len + 4,
+            Form::Independent | Form::Degenerate => 0,
+        }
+    }
+
+    /// The exponents of the node sum of `Phi2(h, k; r)`, into `out`
+    /// ([`Self::exponentials`] of them; any values where [`Bvn::cdf_from`]
+    /// will not need them). The caller takes their exponentials, in one
+    /// batch with others of its own, and hands them to [`Bvn::cdf_from`].
+    #[inline]
+    pub(crate) fn cdf_exponents(&self, h: f64, k: f64, out: &mut [f64]) {
+        self.node_exponents(-h, -k, out);
+    }
+
+    /// `Phi2(h, k; r)` from the exponentials of [`Bvn::cdf_exponents`]:
+    /// [`Bvn::cdf_with`] to the bit.
+    #[inline]
+    pub(crate) fn cdf_from(&self, h: f64, k: f64, e: &[f64], tails: &Tails) -> f64 {
+        match self.edge(h, k, tails) {
+            Some(v) => v,
+            None => self.upper_from(-h, -k, e, &Negated(tails)).clamp(0.0, 1.0),
+        }
+    }
+
+    /// `P(X > h, Y > k)` for `|h|, |k| < FAR`; Genz's BVND. `n` gives the
+    /// normal CDF at `h`, `-h`, `k`, `-k` of these arguments.
+    #[inline]
+    fn upper(&self, h: f64, k: f64, n: &impl NormalAt) -> f64 {
+        let mut e = [0.0; 44];
+        let e = &mut e[..self.exponentials()];
+        self.node_exponents(h, k, e);
+        exp_in_place(e);
+        self.upper_from(h, k, e, n)
+    }
+
+    /// The exponents of [`Self::upper`]'s node sum at `(h, k)`.
+    #[inline]
+    fn node_exponents(&self, h: f64, k: f64, out: &mut [f64]) {
+        let hk = h * k;
+        let len = self.len;
+        match self.form {
             Form::Angle => {
                 let hs = 0.5 * (h * h + k * k);
-                let mut sum = 0.0;
-                for j in 0..self.len {
-                    sum += self.w[j] * ((self.p[j] * hk - hs) * self.q[j]).exp();
+                for ((e, p), q) in out[..len].iter_mut().zip(&self.p).zip(&self.q) {
+                    *e = (p * hk - hs) * q;
                 }
-                return sum * self.scale + norm_cdf(-h) * norm_cdf(-k);
+            }
+            Form::Series => {
+                // |r| >= 0.925: reflect r < 0 onto r > 0 through k -> -k.
+                let (k, hk) = if self.r < 0.0 { (-k, -hk) } else { (k, hk) };
+                let bs = (h - k) * (h - k);
+                let (nodes, outside) = out[..2 * len + 4].split_at_mut(2 * len);
+                let (e1, e2) = nodes.split_at_mut(len);
+                for (((e1, e2), p), t) in e1.iter_mut().zip(e2).zip(&self.p).zip(&self.t) {
+                    *e1 = -0.5 * (bs * p + hk);
+                    *e2 = -hk * t;
+                }
+                let a_s = self.scale;
+                let tail = erfc::prepare(series_tail_argument(bs, a_s));
+                let [t0, t1] = if erfc::exponentials_needed(&tail) {
+                    tail.exponents()
+                } else {
+                    [0.0; 2]
+                };
+                outside.copy_from_slice(&[-0.5 * (bs / a_s + hk), -0.5 * hk, t0, t1]);
+            }
+            Form::Independent | Form::Degenerate => {}
+        }
+    }
+
+    /// [`Self::upper`] from the exponentials of its node exponents.
+    #[inline]
+    fn upper_from(&self, h: f64, k: f64, e: &[f64], n: &impl NormalAt) -> f64 {
+        let hk = h * k;
+        let len = self.len;
+        match self.form {
+            Form::Independent => return n.minus_h() * n.minus_k(),
+            Form::Angle => {
+                // The weighted sum in node order.
+                let mut sum = 0.0;
+                for (w, e) in self.w[..len].iter().zip(&e[..len]) {
+                    sum += w * e;
+                }
+                return sum * self.scale + n.minus_h() * n.minus_k();
             }
             Form::Series | Form::Degenerate => {}
         }
         // |r| >= 0.925: reflect r < 0 onto r > 0 through k -> -k.
-        let (k, hk) = if self.r < 0.0 { (-k, -hk) } else { (k, hk) };
+        let reflect = self.r < 0.0;
+        let (k, hk) = if reflect { (-k, -hk) } else { (k, hk) };
+        // N(-k) and N(k) of the reflected k.
+        let (n_minus_k, n_k) = if reflect {
+            (n.k(), n.minus_k())
+        } else {
+            (n.minus_k(), n.k())
+        };
         let mut bvn = 0.0;
         if self.form == Form::Series {
             let a_s = self.scale;
@@ -350,40 +485,139 @@ impl Bvn {
             let bs = (h - k) * (h - k);
             let c = (4.0 - hk) / 8.0;
             let d = (12.0 - hk) / 16.0;
+            let outside = &e[2 * len..2 * len + 4];
             bvn = a
-                * (-0.5 * (bs / a_s + hk)).exp()
+                * outside[0]
                 * (1.0 - c * (bs - a_s) * (1.0 - d * bs / 5.0) / 3.0 + c * d * a_s * a_s / 5.0);
             if hk > -160.0 {
                 let b = bs.sqrt();
-                bvn -= (-0.5 * hk).exp()
+                // N(-b / a) = erfc(b / (a sqrt 2)) / 2, its exponentials taken
+                // with the nodes'.
+                let tail = erfc::finish_at(series_tail_argument(bs, a_s), [outside[2], outside[3]]);
+                bvn -= outside[1]
                     * TWO_PI.sqrt()
-                    * norm_cdf(-b / a)
+                    * (0.5 * tail)
                     * b
                     * (1.0 - c * bs * (1.0 - d * bs / 5.0) / 3.0);
             }
             // Both halves of the rule in Genz's second form:
             // exp(-(bs/xs + hk)/2) (exp(-hk (1-rs)/(2(1+rs))) / rs - (1 + c xs (1 + d xs)))
-            for j in 0..self.len {
+            let (e1, e2) = e[..2 * len].split_at(len);
+            for j in 0..len {
                 let xs = self.q[j];
-                bvn += self.w[j]
-                    * (-0.5 * (bs * self.p[j] + hk)).exp()
-                    * ((-hk * self.t[j]).exp() * self.u[j] - (1.0 + c * xs * (1.0 + d * xs)));
+                bvn += self.w[j] * e1[j] * (e2[j] * self.u[j] - (1.0 + c * xs * (1.0 + d * xs)));
             }
             bvn = -bvn / TWO_PI;
         }
         if self.r > 0.0 {
-            bvn + norm_cdf(-h.max(k))
+            bvn + if h >= k { n.minus_h() } else { n_minus_k }
         } else {
             let mut bvn = -bvn;
             if k > h {
                 bvn += if h < 0.0 {
-                    norm_cdf(k) - norm_cdf(h)
+                    n_k - n.h()
                 } else {
-                    norm_cdf(-h) - norm_cdf(-k)
+                    n.minus_h() - n_minus_k
                 };
             }
             bvn
         }
+    }
+}
+
+/// The argument of `erfc` in the series form's `N(-b / a)`, `b = |h - k|`,
+/// `a = sqrt(1 - r²)`: `b / a / sqrt 2` (as `N(x) = erfc(-x / sqrt 2) / 2`
+/// forms it).
+#[inline]
+fn series_tail_argument(bs: f64, a_s: f64) -> f64 {
+    -(-bs.sqrt() / a_s.sqrt()) * std::f64::consts::FRAC_1_SQRT_2
+}
+
+/// The normal CDF at `h`, `-h`, `k` and `-k`, for [`Bvn::cdf_with`].
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Tails {
+    /// `N(h)`.
+    pub h: f64,
+    /// `N(-h)`.
+    pub minus_h: f64,
+    /// `N(k)`.
+    pub k: f64,
+    /// `N(-k)`.
+    pub minus_k: f64,
+}
+
+/// Where the node sums find the normal CDF of their bounds: computed on
+/// demand ([`OnDemand`]) or given ([`Tails`]).
+trait NormalAt {
+    fn h(&self) -> f64;
+    fn minus_h(&self) -> f64;
+    fn k(&self) -> f64;
+    fn minus_k(&self) -> f64;
+}
+
+impl NormalAt for Tails {
+    #[inline]
+    fn h(&self) -> f64 {
+        self.h
+    }
+    #[inline]
+    fn minus_h(&self) -> f64 {
+        self.minus_h
+    }
+    #[inline]
+    fn k(&self) -> f64 {
+        self.k
+    }
+    #[inline]
+    fn minus_k(&self) -> f64 {
+        self.minus_k
+    }
+}
+
+/// The bounds themselves; each normal CDF is computed when asked for.
+struct OnDemand {
+    h: f64,
+    k: f64,
+}
+
+impl NormalAt for OnDemand {
+    #[inline]
+    fn h(&self) -> f64 {
+        norm_cdf(self.h)
+    }
+    #[inline]
+    fn minus_h(&self) -> f64 {
+        norm_cdf(-self.h)
+    }
+    #[inline]
+    fn k(&self) -> f64 {
+        norm_cdf(self.k)
+    }
+    #[inline]
+    fn minus_k(&self) -> f64 {
+        norm_cdf(-self.k)
+    }
+}
+
+/// The tails of `-h` and `-k`, from those of `h` and `k`.
+struct Negated<'a, N: ?Sized>(&'a N);
+
+impl<N: NormalAt> NormalAt for Negated<'_, N> {
+    #[inline]
+    fn h(&self) -> f64 {
+        self.0.minus_h()
+    }
+    #[inline]
+    fn minus_h(&self) -> f64 {
+        self.0.h()
+    }
+    #[inline]
+    fn k(&self) -> f64 {
+        self.0.minus_k()
+    }
+    #[inline]
+    fn minus_k(&self) -> f64 {
+        self.0.k()
     }
 }
 

@@ -33,7 +33,13 @@ use std::str::FromStr;
 /// unit of x (for base expected loss: a probability).
 pub const SLOPE_TOLERANCE: f64 = 1e-14;
 
-/// How base correlation is interpolated across detachment between knots.
+/// How the skew is interpolated across detachment between knots.
+///
+/// `Linear` and `Pchip` interpolate base correlation itself ([`Curve1d`]);
+/// `ExpectedLoss` interpolates base expected loss with a [`ConcaveSpline`]
+/// and reads the correlation back off it (see
+/// [`crate::surface::expected_loss`]), so it needs the index pool and is
+/// built by [`crate::surface::Surface`], not by [`Curve1d`].
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum Interp {
     /// Straight lines between knots.
@@ -41,14 +47,23 @@ pub enum Interp {
     /// Monotone piecewise-cubic Hermite interpolation (Fritsch and Carlson
     /// 1980, slopes as in Moler 2004 and scipy's `PchipInterpolator`).
     Pchip,
+    /// Base expected loss E[min(L, K)] interpolated by a rising concave
+    /// spline with slope in [0, 1]; the correlation at K is the one that
+    /// gives it. Free of arbitrage in detachment by construction.
+    ExpectedLoss,
 }
 
 impl Interp {
-    /// The name used on the command line and in JSON: `linear` or `pchip`.
+    /// Every interpolation, in the documentation's order.
+    pub const ALL: [Interp; 3] = [Interp::Linear, Interp::Pchip, Interp::ExpectedLoss];
+
+    /// The name used on the command line and in JSON: `linear`, `pchip` or
+    /// `expected-loss`.
     pub fn name(&self) -> &'static str {
         match self {
             Interp::Linear => "linear",
             Interp::Pchip => "pchip",
+            Interp::ExpectedLoss => "expected-loss",
         }
     }
 }
@@ -62,19 +77,22 @@ impl fmt::Display for Interp {
 impl FromStr for Interp {
     type Err = Error;
 
-    /// Parses `linear` or `pchip` (exactly, lower case).
+    /// Parses `linear`, `pchip` or `expected-loss` (exactly, lower case).
     ///
     /// # Errors
     /// [`ErrorKind::Usage`] for any other text, quoting it.
     fn from_str(s: &str) -> crate::Result<Interp> {
-        match s {
-            "linear" => Ok(Interp::Linear),
-            "pchip" => Ok(Interp::Pchip),
-            other => Err(Error::msg(
-                ErrorKind::Usage,
-                format!("expected an interpolation \"linear\" or \"pchip\", found \"{other}\""),
-            )),
-        }
+        Interp::ALL
+            .into_iter()
+            .find(|i| i.name() == s)
+            .ok_or_else(|| {
+                Error::msg(
+                    ErrorKind::Usage,
+                    format!(
+                        "expected an interpolation \"linear\", \"pchip\" or \"expected-loss\", found \"{s}\""
+                    ),
+                )
+            })
     }
 }
 
@@ -125,8 +143,74 @@ fn check_knots(x: &[f64], y: &[f64]) -> crate::Result<()> {
     Ok(())
 }
 
+/// Checks data for a rising concave curve with slope in [0, 1]
+/// ([`ConcaveSpline`], [`super::monotone_convex::MonotoneConvex`]): knots
+/// as for [`Curve1d`], secants in [0, 1] and not rising, optional end
+/// slopes in range (each to [`SLOPE_TOLERANCE`]). Returns the interval
+/// widths and secants.
+pub(crate) fn concave_shape(
+    x: &[f64],
+    y: &[f64],
+    first: Option<f64>,
+    last: Option<f64>,
+) -> crate::Result<(Vec<f64>, Vec<f64>)> {
+    check_knots(x, y)?;
+    let n = x.len() - 1; // intervals
+    let h: Vec<f64> = x.windows(2).map(|w| w[1] - w[0]).collect();
+    let delta: Vec<f64> = (0..n).map(|i| (y[i + 1] - y[i]) / h[i]).collect();
+    let mut problems = Vec::new();
+    for i in 0..n {
+        if delta[i] < -SLOPE_TOLERANCE || delta[i] > 1.0 + SLOPE_TOLERANCE {
+            problems.push(Problem::new(format!(
+                "knots at x = {} and x = {}: expected a secant slope in [0, 1], found {}",
+                x[i],
+                x[i + 1],
+                delta[i]
+            )));
+        }
+        if i > 0 && delta[i] - delta[i - 1] > SLOPE_TOLERANCE {
+            problems.push(Problem::new(format!(
+                "knots at x = {} and x = {}: expected a secant slope at most the {} of the \
+                 pair before (x = {} to {}), found {}: the data are not concave",
+                x[i],
+                x[i + 1],
+                delta[i - 1],
+                x[i - 1],
+                x[i],
+                delta[i]
+            )));
+        }
+    }
+    if n >= 1 {
+        if let Some(s1) = first {
+            if !(s1 >= delta[0] - SLOPE_TOLERANCE && s1 <= 1.0 + SLOPE_TOLERANCE) {
+                problems.push(Problem::new(format!(
+                    "slope at x = {}: expected a value in [{}, 1] (the first secant to 1), found {s1}",
+                    x[0], delta[0]
+                )));
+            }
+        }
+        if let Some(s2) = last {
+            if !(s2 >= -SLOPE_TOLERANCE && s2 <= delta[n - 1] + SLOPE_TOLERANCE) {
+                problems.push(Problem::new(format!(
+                    "slope at x = {}: expected a value in [0, {}] (0 to the last secant), found {s2}",
+                    x[n],
+                    delta[n - 1]
+                )));
+            }
+        }
+    }
+    if !problems.is_empty() {
+        return Err(Error {
+            kind: ErrorKind::InvalidInput,
+            problems,
+        });
+    }
+    Ok((h, delta))
+}
+
 /// Index k of the interval [x_k, x_(k+1)) holding t, for x_0 < t < x_last.
-fn interval(x: &[f64], t: f64) -> usize {
+pub(crate) fn interval(x: &[f64], t: f64) -> usize {
     x.partition_point(|&xi| xi <= t) - 1
 }
 
@@ -207,7 +291,16 @@ impl Curve1d {
     /// [`ErrorKind::InvalidInput`] when x and y differ in length, are empty,
     /// hold a non-finite value, x is not strictly increasing, or a secant
     /// slope overflows; the message names the knot (counted from 1).
+    /// [`ErrorKind::Usage`] for [`Interp::ExpectedLoss`], which interpolates
+    /// base expected loss, not the values given.
     pub fn new(x: &[f64], y: &[f64], interp: Interp) -> crate::Result<Curve1d> {
+        if interp == Interp::ExpectedLoss {
+            return Err(Error::msg(
+                ErrorKind::Usage,
+                "expected-loss interpolates base expected loss and needs the index pool: \
+                 build it with surface::Surface, not Curve1d",
+            ));
+        }
         check_knots(x, y)?;
         let n = x.len();
         if n == 1 {
@@ -221,7 +314,10 @@ impl Curve1d {
         let h: Vec<f64> = x.windows(2).map(|w| w[1] - w[0]).collect();
         let m: Vec<f64> = (0..n - 1).map(|k| (y[k + 1] - y[k]) / h[k]).collect();
         let cubics = match interp {
-            Interp::Linear => (0..n - 1).map(|k| [0.0, 0.0, m[k], y[k]]).collect(),
+            // ExpectedLoss is refused above
+            Interp::Linear | Interp::ExpectedLoss => {
+                (0..n - 1).map(|k| [0.0, 0.0, m[k], y[k]]).collect()
+            }
             Interp::Pchip => {
                 let d = pchip_slopes(&h, &m);
                 (0..n - 1)
@@ -487,39 +583,40 @@ impl ConcaveSpline {
     /// [`SLOPE_TOLERANCE`] from one knot pair to the next; every offending
     /// knot pair is named by its x values.
     pub fn new(x: &[f64], y: &[f64]) -> crate::Result<ConcaveSpline> {
-        check_knots(x, y)?;
-        let n = x.len() - 1; // intervals
-        let h: Vec<f64> = x.windows(2).map(|w| w[1] - w[0]).collect();
-        let delta: Vec<f64> = (0..n).map(|i| (y[i + 1] - y[i]) / h[i]).collect();
-        let mut problems = Vec::new();
-        for i in 0..n {
-            if delta[i] < -SLOPE_TOLERANCE || delta[i] > 1.0 + SLOPE_TOLERANCE {
-                problems.push(Problem::new(format!(
-                    "knots at x = {} and x = {}: expected a secant slope in [0, 1], found {}",
-                    x[i],
-                    x[i + 1],
-                    delta[i]
-                )));
-            }
-            if i > 0 && delta[i] - delta[i - 1] > SLOPE_TOLERANCE {
-                problems.push(Problem::new(format!(
-                    "knots at x = {} and x = {}: expected a secant slope at most the {} of the \
-                     pair before (x = {} to {}), found {}: the data are not concave",
-                    x[i],
-                    x[i + 1],
-                    delta[i - 1],
-                    x[i - 1],
-                    x[i],
-                    delta[i]
-                )));
-            }
-        }
-        if !problems.is_empty() {
-            return Err(Error {
-                kind: ErrorKind::InvalidInput,
-                problems,
-            });
-        }
+        ConcaveSpline::with_end_slopes(x, y, None, None)
+    }
+
+    /// [`ConcaveSpline::new`] with the slope at the first knot and/or at the
+    /// last knot given instead of taken from the end parabola. A given end
+    /// slope applies when its end interval is curved (a straight end
+    /// interval keeps its secant); it must lie in [δ_0, 1] at the first knot
+    /// and in [0, δ_(n-1)] at the last, so the spline keeps its shape.
+    ///
+    /// For base expected loss in the large-pool model, P(L > 0) = 1 and
+    /// P(L > 1 - R) = 0 whenever 0 < PD and rho < 1: `Some(1.0)` at K = 0
+    /// puts no probability mass at zero loss.
+    ///
+    /// # Errors
+    /// As [`ConcaveSpline::new`]; [`ErrorKind::InvalidInput`] for an end
+    /// slope outside its range, naming it.
+    ///
+    /// ```
+    /// use skewbook::math::interp::ConcaveSpline;
+    /// let (x, y) = ([0.0, 1.0, 2.0], [0.0, 0.8, 1.0]);
+    /// let g = ConcaveSpline::with_end_slopes(&x, &y, Some(1.0), Some(0.0))?;
+    /// assert_eq!(g.slope(0.0), 1.0);
+    /// assert!(g.slope(2.0 - 1e-9) < 1e-8);
+    /// assert!((g.eval(1.0) - 0.8).abs() < 1e-15);
+    /// # Ok::<(), skewbook::error::Error>(())
+    /// ```
+    pub fn with_end_slopes(
+        x: &[f64],
+        y: &[f64],
+        first: Option<f64>,
+        last: Option<f64>,
+    ) -> crate::Result<ConcaveSpline> {
+        let (h, delta) = concave_shape(x, y, first, last)?;
+        let n = h.len(); // intervals
 
         let straight: Vec<bool> = (0..n)
             .map(|i| {
@@ -548,14 +645,16 @@ impl ConcaveSpline {
                 }
                 // curved: n >= 2, so a neighbour exists on at least one side
                 let left = if i == 0 {
-                    (d + (d - delta[1]) * h[0] / (h[0] + h[1])).min(1.0)
+                    first.unwrap_or_else(|| (d + (d - delta[1]) * h[0] / (h[0] + h[1])).min(1.0))
                 } else if straight[i - 1] {
                     delta[i - 1]
                 } else {
                     bessel(i)
                 };
                 let right = if i == n - 1 {
-                    (d - (delta[i - 1] - d) * h[i] / (h[i - 1] + h[i])).max(0.0)
+                    last.unwrap_or_else(|| {
+                        (d - (delta[i - 1] - d) * h[i] / (h[i - 1] + h[i])).max(0.0)
+                    })
                 } else if straight[i + 1] {
                     delta[i + 1]
                 } else {
@@ -635,6 +734,37 @@ impl ConcaveSpline {
     /// The knots (x, y) the spline was built from.
     pub fn knots(&self) -> (&[f64], &[f64]) {
         (&self.x, &self.y)
+    }
+
+    /// The slope on [x_first, x_last] as consecutive linear pieces
+    /// `[from, to, slope at from, slope at to]`, increasing x (each interval
+    /// gives one piece when straight, two when curved). For base expected
+    /// loss the slope is P(L > K), so a piece's fall over its width is the
+    /// loss density there, and a drop from one piece's end to the next
+    /// one's start is a probability mass at that point.
+    ///
+    /// ```
+    /// use skewbook::math::interp::ConcaveSpline;
+    /// let g = ConcaveSpline::new(&[0.0, 1.0, 2.0], &[0.0, 0.8, 1.0])?;
+    /// let p = g.slope_pieces();
+    /// assert_eq!(p.len(), 4);
+    /// let want = [0.0, 0.6, 1.0, 0.8]; // slope falls from 1 to the secant 0.8 by x = 0.6
+    /// assert!(p[0].iter().zip(want).all(|(a, b)| (a - b).abs() < 1e-15));
+    /// # Ok::<(), skewbook::error::Error>(())
+    /// ```
+    pub fn slope_pieces(&self) -> Vec<[f64; 4]> {
+        let mut out = Vec::with_capacity(2 * self.pieces.len());
+        for (i, p) in self.pieces.iter().enumerate() {
+            let (x0, x1) = (self.x[i], self.x[i + 1]);
+            if p.beta == 0.0 {
+                out.push([x0, x1, p.left, p.mid]);
+            } else {
+                let xi = x0 + p.alpha;
+                out.push([x0, xi, p.left, p.mid]);
+                out.push([xi, x1, p.mid, p.right]);
+            }
+        }
+        out
     }
 }
 

@@ -101,9 +101,9 @@ pub fn brent<F: FnMut(f64) -> f64>(
 /// [`Failure::NotBracketed`] when `fa` and `fb` have the same sign;
 /// [`Failure::NoConvergence`] when the iteration budget runs out.
 pub fn newton_bracketed<F: FnMut(f64) -> (f64, f64)>(
-    mut fdf: F,
-    mut a: f64,
-    mut b: f64,
+    fdf: F,
+    a: f64,
+    b: f64,
     fa: f64,
     fb: f64,
     tol: Tolerance,
@@ -120,13 +120,112 @@ pub fn newton_bracketed<F: FnMut(f64) -> (f64, f64)>(
     if fa.signum() == fb.signum() {
         return Err(Failure::NotBracketed);
     }
+    // Start from the secant point (from the end where f < 0).
+    let (neg, pos) = if fa < 0.0 { (a, b) } else { (b, a) };
+    let (flo, fhi) = (fa.min(fb), fa.max(fb));
+    let x = neg + (pos - neg) * (-flo) / (fhi - flo);
+    newton_from(fdf, a, b, fa, x, tol)
+}
+
+/// [`newton_bracketed`] started from the root of the cubic Hermite
+/// interpolant through `(a, fa, da)` and `(b, fb, db)` (values and
+/// derivatives at the ends, as a scan has them) instead of the secant
+/// point: when the scan is fine enough that the cubic is close to `f`, one
+/// or two Newton steps fewer.
+///
+/// # Errors
+/// As [`newton_bracketed`].
+pub fn newton_bracketed_hermite<F: FnMut(f64) -> (f64, f64)>(
+    fdf: F,
+    ends: (f64, f64),
+    values: (f64, f64),
+    slopes: (f64, f64),
+    tol: Tolerance,
+) -> Result<Solution, Failure> {
+    let ((a, b), (fa, fb)) = (ends, values);
+    if fa == 0.0 || fb == 0.0 {
+        return newton_bracketed(fdf, a, b, fa, fb, tol);
+    }
+    if fa.signum() == fb.signum() {
+        return Err(Failure::NotBracketed);
+    }
+    let x = hermite_root(ends, values, slopes);
+    newton_from(fdf, a, b, fa, x, tol)
+}
+
+/// A zero inside (a, b) of the cubic Hermite interpolant through
+/// `(a, fa, da)` and `(b, fb, db)`, `fa` and `fb` of opposite signs (so the
+/// cubic has one there): bisection-safeguarded Newton on the cubic. Falls
+/// back to the secant point when a slope is not finite.
+///
+/// # Formula
+/// ```text
+/// t = (x - a) / (b - a),  h = b - a
+/// p(t) = (2t³ - 3t² + 1) fa + (t³ - 2t² + t) h da + (-2t³ + 3t²) fb + (t³ - t²) h db
+/// ```
+pub fn hermite_root(ends: (f64, f64), values: (f64, f64), slopes: (f64, f64)) -> f64 {
+    let ((a, b), (fa, fb), (da, db)) = (ends, values, slopes);
+    let secant = a + (b - a) * (-fa) / (fb - fa);
+    if !(da.is_finite() && db.is_finite()) {
+        return secant;
+    }
+    let h = b - a;
+    let (ma, mb) = (h * da, h * db);
+    // p(t) = c0 + c1 t + c2 t² + c3 t³
+    let (c0, c1) = (fa, ma);
+    let c2 = -3.0 * fa - 2.0 * ma + 3.0 * fb - mb;
+    let c3 = 2.0 * fa + ma - 2.0 * fb + mb;
+    let p = |t: f64| ((c3 * t + c2) * t + c1) * t + c0;
+    let dp = |t: f64| (3.0 * c3 * t + 2.0 * c2) * t + c1;
+    // Bracket in t with p(lo) < 0 < p(hi).
+    let (mut lo, mut hi) = if fa < 0.0 { (0.0, 1.0) } else { (1.0, 0.0) };
+    let mut t = (secant - a) / h;
+    for _ in 0..60 {
+        let v = p(t);
+        if v == 0.0 {
+            break;
+        }
+        if v < 0.0 {
+            lo = t;
+        } else {
+            hi = t;
+        }
+        let step = t - v / dp(t);
+        let (l, u) = (lo.min(hi), lo.max(hi));
+        let next = if step > l && step < u {
+            step
+        } else {
+            0.5 * (lo + hi)
+        };
+        if (next - t).abs() <= 1e-15 {
+            t = next;
+            break;
+        }
+        t = next;
+    }
+    let x = a + t * h;
+    // Strictly inside the bracket, as the Newton iteration expects.
+    if x > a.min(b) && x < a.max(b) {
+        x
+    } else {
+        secant
+    }
+}
+
+/// Newton kept inside the bracket [a, b] (f(a) = `fa`, f(b) of the other
+/// sign), from `x`.
+fn newton_from<F: FnMut(f64) -> (f64, f64)>(
+    mut fdf: F,
+    mut a: f64,
+    mut b: f64,
+    fa: f64,
+    mut x: f64,
+    tol: Tolerance,
+) -> Result<Solution, Failure> {
     // Orient so that f(a) < 0 < f(b).
     if fa > 0.0 {
         std::mem::swap(&mut a, &mut b);
     }
-    // Start from the secant point.
-    let (flo, fhi) = (fa.min(fb), fa.max(fb));
-    let mut x = a + (b - a) * (-flo) / (fhi - flo);
     for evaluations in 1..=tol.max_iterations {
         let (fx, dfx) = fdf(x);
         if fx.abs() < tol.residual {
@@ -191,6 +290,44 @@ mod tests {
         assert!((n.value - 2f64.sqrt()).abs() < 1e-14);
         // Newton from the secant start: quadratic convergence, a handful of steps.
         assert!(n.evaluations <= 7, "{}", n.evaluations);
+    }
+
+    /// A cubic is its own Hermite interpolant: the start is its root, and
+    /// one evaluation confirms it. (x - 0.3)(x + 2)(x - 5) on [0, 1].
+    #[test]
+    fn hermite_start_on_a_cubic_is_the_root() {
+        let f = |x: f64| (x - 0.3) * (x + 2.0) * (x - 5.0);
+        let df = |x: f64| (x + 2.0) * (x - 5.0) + (x - 0.3) * (2.0 * x - 3.0);
+        let t = hermite_root((0.0, 1.0), (f(0.0), f(1.0)), (df(0.0), df(1.0)));
+        assert!((t - 0.3).abs() < 1e-15, "{t}");
+        let n = newton_bracketed_hermite(
+            |x| (f(x), df(x)),
+            (0.0, 1.0),
+            (f(0.0), f(1.0)),
+            (df(0.0), df(1.0)),
+            TOL,
+        )
+        .unwrap();
+        assert!((n.value - 0.3).abs() < 1e-15);
+        assert!(n.evaluations <= 2, "{}", n.evaluations);
+        // Reversed orientation (f(a) > 0) and a non-finite slope (secant start).
+        let g = |x: f64| -f(x);
+        let r = hermite_root((0.0, 1.0), (g(0.0), g(1.0)), (-df(0.0), -df(1.0)));
+        assert!((r - 0.3).abs() < 1e-15, "{r}");
+        let s = hermite_root((0.0, 1.0), (f(0.0), f(1.0)), (f64::NEG_INFINITY, 1.0));
+        assert_eq!(s, -f(0.0) / (f(1.0) - f(0.0)));
+    }
+
+    /// sqrt 2 from a wide bracket with the Hermite start: no more Newton
+    /// steps than from the secant point.
+    #[test]
+    fn hermite_start_is_no_slower() {
+        let fdf = |x: f64| (x * x - 2.0, 2.0 * x);
+        let secant = newton_bracketed(fdf, 0.0, 2.0, -2.0, 2.0, TOL).unwrap();
+        let hermite =
+            newton_bracketed_hermite(fdf, (0.0, 2.0), (-2.0, 2.0), (0.0, 4.0), TOL).unwrap();
+        assert!((hermite.value - 2f64.sqrt()).abs() < 1e-14);
+        assert!(hermite.evaluations <= secant.evaluations);
     }
 
     #[test]

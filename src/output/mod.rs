@@ -32,6 +32,7 @@ mod finite;
 
 pub use finite::{check_finite, NonFinite};
 
+pub use crate::error::significant;
 use serde::Serialize;
 use std::io::{self, Write};
 
@@ -196,7 +197,16 @@ pub fn write_report<R: Report>(
 
 /// A cell, title or note that would print a non-finite number: a word
 /// `NaN`, `inf` or `-inf` (as Rust formats them), wherever it stands.
-fn shows_non_finite(text: &str) -> Option<&'static str> {
+/// The readers refuse names and labels with such a word
+/// (`input::trades`, `input::pools`, `input::history`), so that text read
+/// from a file never trips this scan.
+///
+/// ```
+/// use skewbook::output::shows_non_finite;
+/// assert_eq!(shows_non_finite("0.1..NaN"), Some("NaN"));
+/// assert_eq!(shows_non_finite("infra-1"), None);
+/// ```
+pub fn shows_non_finite(text: &str) -> Option<&'static str> {
     let mut words = text.split(|c: char| !(c.is_ascii_alphanumeric() || c == '-' || c == '+'));
     words.find_map(|w| match w.trim_start_matches(['-', '+']) {
         "NaN" => Some("NaN"),
@@ -358,47 +368,6 @@ pub fn wrap(text: &str, width: usize, indent: usize) -> Vec<String> {
         lines.push(cur);
     }
     lines
-}
-
-/// `x` with at most `digits` significant digits (at least 1), for messages:
-/// plain notation from 1e-4 to below 1e6, exponent form outside; trailing
-/// zeros dropped.
-///
-/// ```
-/// use skewbook::output::significant;
-/// assert_eq!(significant(55.123456789, 6), "55.1235");
-/// assert_eq!(significant(1e100, 6), "1e100");
-/// assert_eq!(significant(0.000123456789, 6), "0.000123457");
-/// assert_eq!(significant(-2.5e-7, 6), "-2.5e-7");
-/// assert_eq!(significant(40.0, 6), "40");
-/// assert_eq!(significant(999999.7, 6), "1e6");
-/// ```
-pub fn significant(x: f64, digits: usize) -> String {
-    if !x.is_finite() {
-        return format!("{x}");
-    }
-    if x == 0.0 {
-        return "0".to_string();
-    }
-    let digits = digits.max(1);
-    // Round once, in exponent form, so the exponent is that of the rounded value.
-    let e_form = format!("{:.*e}", digits - 1, x);
-    let (mantissa, exponent) = e_form.split_once('e').expect("exponent form");
-    let exponent: i32 = exponent.parse().expect("exponent");
-    let trim = |s: &str| -> String {
-        if s.contains('.') {
-            s.trim_end_matches('0').trim_end_matches('.').to_string()
-        } else {
-            s.to_string()
-        }
-    };
-    if (-4..6).contains(&exponent) {
-        let decimals = (digits as i32 - 1 - exponent).max(0) as usize;
-        let rounded: f64 = e_form.parse().expect("round trip");
-        trim(&format!("{rounded:.decimals$}"))
-    } else {
-        format!("{}e{exponent}", trim(mantissa))
-    }
 }
 
 #[cfg(test)]

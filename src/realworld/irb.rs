@@ -1,8 +1,8 @@
 //! Basel II IRB capital for corporate exposures, a labelled reference figure.
 
+use crate::error::significant;
 use crate::error::{Error, ErrorKind, Result};
 use crate::math::normal::{cdf, inv_cdf};
-use crate::output::significant;
 use serde::Serialize;
 
 /// The supervisory 99.9 % confidence level of the IRB formula.

@@ -25,7 +25,7 @@ pub fn check_levels(levels: &[f64]) -> Result<()> {
                 ErrorKind::Usage,
                 format!(
                     "confidence level: expected a fraction in (0, 1), found {}",
-                    crate::output::significant(q, 6)
+                    crate::error::significant(q, 6)
                 ),
             ));
         }
@@ -34,7 +34,7 @@ pub fn check_levels(levels: &[f64]) -> Result<()> {
                 ErrorKind::Usage,
                 format!(
                     "confidence levels: expected each level once, found {} twice",
-                    crate::output::significant(q, 6)
+                    crate::error::significant(q, 6)
                 ),
             ));
         }

@@ -5,10 +5,10 @@
 //! period is `X = N((c - sqrt(rho) Z) / sqrt(1 - rho))`, `c = G(pd)`,
 //! `Z ~ N(0, 1)`; the loss fraction is `LGD · X`.
 
+use crate::error::significant;
 use crate::error::{Error, ErrorKind, Result};
 use crate::math::bvn::bvn_cdf;
 use crate::math::normal::{cdf, inv_cdf};
-use crate::output::significant;
 use serde::Serialize;
 
 /// A checked Vasicek distribution: `pd` and `rho` in (0, 1), `lgd` in (0, 1].

@@ -6,6 +6,7 @@
 //! quotes are in their file units (bp for spreads, percent for upfronts).
 
 pub mod curve;
+pub mod html;
 pub mod implied;
 pub mod loss;
 pub mod price;
@@ -14,77 +15,117 @@ pub mod skew_history;
 pub mod surface;
 pub mod value;
 
-use crate::curve::{MarketOptions, Pool};
 use crate::error::{Error, Result};
-use crate::market::{MarketDate, Snapshot, TrancheQuote};
+use crate::market::{date_span, MarketDate, Snapshot, TrancheQuote};
 use crate::output::pct;
 use serde::Serialize;
 
-/// Builds the index pool (curves) of every date of a snapshot, collecting
-/// every date's error into one [`Error`] so a history shows all its bad
-/// dates at once.
-///
-/// # Errors
-/// The first error's kind, with the problems of every failing date.
-pub fn pools_for_all_dates(
-    snapshot: &Snapshot,
-    opts: &MarketOptions,
-) -> Result<Vec<(MarketDate, Pool)>> {
-    let mut out = Vec::with_capacity(snapshot.dates.len());
-    let mut failure: Option<Error> = None;
-    for md in &snapshot.dates {
-        match Pool::build(md, opts, &snapshot.path) {
-            Ok(c) => out.push((md.clone(), c)),
-            Err(e) => match &mut failure {
-                None => failure = Some(e),
-                Some(f) => f.problems.extend(e.problems),
-            },
-        }
+pub use crate::curve::pool::pools_for_all_dates;
+pub use crate::market::select_date;
+
+/// Which trade dates of a snapshot (a history) a command runs: one date,
+/// or those from `from` to `to`, both included, either end open.
+#[derive(Debug, Clone, Copy, Default, PartialEq, Eq)]
+pub struct DateFilter {
+    /// Only this date.
+    pub date: Option<chrono::NaiveDate>,
+    /// No date before this one.
+    pub from: Option<chrono::NaiveDate>,
+    /// No date after this one.
+    pub to: Option<chrono::NaiveDate>,
+}
+
+impl DateFilter {
+    /// Whether the filter keeps every date.
+    pub fn is_all(&self) -> bool {
+        self.date.is_none() && self.from.is_none() && self.to.is_none()
     }
-    match failure {
-        Some(e) => Err(e),
-        None => Ok(out),
+
+    /// Whether the filter keeps `d`.
+    pub fn keeps(&self, d: chrono::NaiveDate) -> bool {
+        self.date.is_none_or(|x| x == d)
+            && self.from.is_none_or(|x| d >= x)
+            && self.to.is_none_or(|x| d <= x)
+    }
+
+    fn describe(&self) -> String {
+        match (self.date, self.from, self.to) {
+            (Some(d), _, _) => format!("--date {d}: no quotes on that date"),
+            (None, Some(f), Some(t)) => format!("--from {f} --to {t}: no quotes from {f} to {t}"),
+            (None, Some(f), None) => format!("--from {f}: no quotes on or after {f}"),
+            (None, None, Some(t)) => format!("--to {t}: no quotes on or before {t}"),
+            (None, None, None) => "no quotes".to_string(),
+        }
     }
 }
 
-/// The snapshot restricted to one trade date, or as it is when `only` is `None`.
+/// The snapshot restricted to the dates `filter` keeps, with only the
+/// warnings of those dates' rows.
 ///
 /// # Errors
-/// [`crate::ErrorKind::Usage`] when the date is not in the file.
-pub fn select_date(snapshot: &Snapshot, only: Option<chrono::NaiveDate>) -> Result<Snapshot> {
-    let Some(d) = only else {
+/// [`crate::ErrorKind::Usage`] when `from` is after `to`, or no date of
+/// the file is kept (the message gives the file's dates).
+///
+/// ```
+/// use chrono::NaiveDate;
+/// use skewbook::input::snapshot::read_snapshot;
+/// use skewbook::report::{filter_dates, DateFilter};
+/// let history = read_snapshot("market-samples/hgx-history-2026-06.csv")?;
+/// let d = |s: &str| NaiveDate::parse_from_str(s, "%Y-%m-%d").unwrap();
+/// let week = DateFilter { from: Some(d("2026-06-08")), to: Some(d("2026-06-12")), date: None };
+/// assert_eq!(filter_dates(&history, &week)?.dates.len(), 5);
+/// assert!(filter_dates(&history, &DateFilter { date: Some(d("2026-06-13")), ..week }).is_err());
+/// # Ok::<(), skewbook::Error>(())
+/// ```
+pub fn filter_dates(snapshot: &Snapshot, filter: &DateFilter) -> Result<Snapshot> {
+    if filter.is_all() {
         return Ok(snapshot.clone());
-    };
+    }
+    if let (Some(f), Some(t)) = (filter.from, filter.to) {
+        if f > t {
+            return Err(Error::msg(
+                crate::ErrorKind::Usage,
+                format!("--from {f} --to {t}: expected --from on or before --to"),
+            ));
+        }
+    }
     let dates: Vec<MarketDate> = snapshot
         .dates
         .iter()
-        .filter(|m| m.date == d)
+        .filter(|m| filter.keeps(m.date))
         .cloned()
         .collect();
     if dates.is_empty() {
-        let have: Vec<String> = snapshot.dates.iter().map(|m| m.date.to_string()).collect();
         return Err(Error::msg(
             crate::ErrorKind::Usage,
             format!(
-                "--date {d}: {} has no quotes on that date (it has {})",
+                "{} in {} (it has {})",
+                filter.describe(),
                 snapshot.path,
-                if have.len() > 6 {
-                    format!(
-                        "{} dates, {} to {}",
-                        have.len(),
-                        have[0],
-                        have[have.len() - 1]
-                    )
-                } else {
-                    have.join(", ")
-                }
+                date_span(snapshot)
             ),
         ));
     }
+    let lines: std::collections::HashSet<u64> = dates
+        .iter()
+        .flat_map(|m| {
+            m.index
+                .iter()
+                .map(|q| q.line)
+                .chain(m.tranches.iter().map(|t| t.line))
+                .chain(m.zeros.iter().map(|z| z.line))
+        })
+        .collect();
+    let warnings = snapshot
+        .warnings
+        .iter()
+        .filter(|w| w.location.as_ref().is_none_or(|l| lines.contains(&l.line)))
+        .cloned()
+        .collect();
     Ok(Snapshot {
         path: snapshot.path.clone(),
         dates,
-        warnings: snapshot.warnings.clone(),
+        warnings,
     })
 }
 

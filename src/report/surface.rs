@@ -14,10 +14,39 @@
 //!       "violations": {"outside_unit", "increasing", "maturity_order"},
 //!       "worst": {"outside_unit": null | {"k_from_pct", "k_to_pct", "tranchelet_loss"},
 //!                 "increasing": null | {"k_from_pct", "k_to_pct", "rise"},
-//!                 "maturity_order": null | {"earlier_maturity", "k_pct", "excess"}} } ],
-//!   "model": "names_125" }   only with --names: the knots solved and g computed in a pool
-//!                            of n names (absent: the large pool, the default)
+//!                 "maturity_order": null | {"earlier_maturity", "k_pct", "excess"}} } ] }
 //! ```
+//!
+//! Under `--interp expected-loss` (and only then, so `linear` and `pchip`
+//! print exactly what the contract lists) each maturity adds:
+//! ```text
+//!   "admissible": bool,   whether the knots admit a rising concave base expected loss
+//!   "inadmissible": [ {"kind": "slope_rises" | "slope_outside_unit", "k_from_pct",
+//!                      "k_mid_pct" (null for slope_outside_unit), "k_to_pct",
+//!                      "lower_slope" (null for slope_outside_unit), "upper_slope",
+//!                      "message"} ],   empty when admissible
+//!   "adjusted_knots": null when admissible, else the knots the repair moved:
+//!       [ {"detach_pct", "base_correlation", "base_expected_loss",
+//!          "adjusted_base_expected_loss", "adjusted_base_correlation", "unattainable"} ]
+//!   "repricing": [ {"attach_pct", "detach_pct", "quote_kind", "reprice_error",
+//!                   "base_curve_reprice_error"} ]
+//! ```
+//! and each knot adds `base_expected_loss` (at its calibrated correlation,
+//! fraction of pool notional), `quote_kind` and `reprice_error` (of the
+//! quoted tranche that detaches there). A slope is base expected loss per
+//! unit of detachment (a probability); `reprice_error` is model quote off
+//! the surface minus the quote, in the quote's unit (`quote_kind`:
+//! `spread_bp` in bp, `upfront_pct` in percent), `null` when the model has
+//! no quote; `base_curve_reprice_error` is the same off the calibrated
+//! base curve (as `implied` reports it: rounding, or for the top tranche,
+//! which has no correlation of its own, the quote's rounding), so the
+//! repair costs the difference; `lower_slope` and `upper_slope` are the two interval slopes
+//! compared, `upper_slope` the one that rises (or lies outside [0, 1]).
+//!
+//! With `--names N` each date adds `"model": "names_N"`: the knots solved
+//! and the base expected loss g computed in a pool of N names (absent for
+//! the large pool, the default). `--interp expected-loss` reads
+//! correlations back through the large pool and is refused with `--names`.
 
 use super::pools_for_all_dates;
 use crate::curve::MarketOptions;
@@ -25,9 +54,11 @@ use crate::error::Result;
 use crate::loss::PoolModel;
 use crate::market::Snapshot;
 use crate::math::interp::Interp;
-use crate::output::{csv_num, fixed, fixed_or, pct, sci, Report, Table};
+use crate::output::{csv_num, fixed, fixed_or, pct, sci, wrap, Report, Table};
 use crate::solve::chain::implied_date_with;
 use crate::surface::diagnostics::{diagnose_with, MaturityDiagnostics};
+use crate::surface::expected_loss::{BaseLossCurve, Inadmissible};
+use crate::surface::reprice::{reprice_quotes, QuoteRepricing};
 use crate::surface::Surface;
 use chrono::NaiveDate;
 use serde::Serialize;
@@ -39,6 +70,69 @@ pub struct KnotOut {
     pub detach_pct: f64,
     /// Base correlation, fraction.
     pub base_correlation: f64,
+    /// `expected-loss` only: base expected loss at the knot's correlation,
+    /// fraction of pool notional.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub base_expected_loss: Option<f64>,
+    /// `expected-loss` only: the quote kind of the tranche detaching here.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub quote_kind: Option<&'static str>,
+    /// `expected-loss` only: that tranche's repricing error off the
+    /// surface, in its quote's unit (`null` when the model has no quote).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub reprice_error: Option<Option<f64>>,
+}
+
+/// Why a maturity's knots are not admissible (one violation).
+#[derive(Debug, Clone, Serialize, PartialEq)]
+pub struct InadmissibleOut {
+    /// `slope_rises` or `slope_outside_unit`.
+    pub kind: &'static str,
+    /// Lower detachment, percent.
+    pub k_from_pct: f64,
+    /// Middle detachment, percent (`null` for `slope_outside_unit`).
+    pub k_mid_pct: Option<f64>,
+    /// Upper detachment, percent (may be 1 - R, the largest loss).
+    pub k_to_pct: f64,
+    /// Slope of the lower interval (`null` for `slope_outside_unit`).
+    pub lower_slope: Option<f64>,
+    /// Slope of the upper interval (the offending one).
+    pub upper_slope: f64,
+    /// The same in words.
+    pub message: String,
+}
+
+/// A knot moved to the nearest admissible value.
+#[derive(Debug, Clone, Serialize, PartialEq)]
+pub struct AdjustedKnotOut {
+    /// Detachment, percent.
+    pub detach_pct: f64,
+    /// The calibrated base correlation.
+    pub base_correlation: f64,
+    /// Base expected loss at it, fraction of pool notional.
+    pub base_expected_loss: f64,
+    /// The nearest admissible base expected loss.
+    pub adjusted_base_expected_loss: f64,
+    /// The correlation that gives it.
+    pub adjusted_base_correlation: f64,
+    /// Whether no correlation in [1e-4, 0.9999] gives it (the nearer end is used).
+    pub unattainable: bool,
+}
+
+/// A quoted tranche repriced off the surface.
+#[derive(Debug, Clone, Serialize, PartialEq)]
+pub struct RepricingOut {
+    /// Attachment, percent.
+    pub attach_pct: f64,
+    /// Detachment, percent.
+    pub detach_pct: f64,
+    /// `spread_bp` or `upfront_pct`.
+    pub quote_kind: &'static str,
+    /// Model quote minus quote, in the quote's unit; `null` when there is
+    /// no model quote.
+    pub reprice_error: Option<f64>,
+    /// The same off the calibrated base curve.
+    pub base_curve_reprice_error: Option<f64>,
 }
 
 /// A grid point in the output.
@@ -124,6 +218,18 @@ pub struct SurfaceMaturity {
     pub violations: CountsOut,
     /// Worst per kind.
     pub worst: WorstOut,
+    /// `expected-loss` only: whether the knots are admissible.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub admissible: Option<bool>,
+    /// `expected-loss` only: why not.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub inadmissible: Option<Vec<InadmissibleOut>>,
+    /// `expected-loss` only: `null` when admissible, else the knots moved.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub adjusted_knots: Option<Option<Vec<AdjustedKnotOut>>>,
+    /// `expected-loss` only: every quoted tranche repriced off the surface.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub repricing: Option<Vec<RepricingOut>>,
 }
 
 impl From<&MaturityDiagnostics> for SurfaceMaturity {
@@ -137,6 +243,9 @@ impl From<&MaturityDiagnostics> for SurfaceMaturity {
                 .map(|k| KnotOut {
                     detach_pct: pct(k.detach),
                     base_correlation: k.rho,
+                    base_expected_loss: None,
+                    quote_kind: None,
+                    reprice_error: None,
                 })
                 .collect(),
             grid: m
@@ -171,7 +280,86 @@ impl From<&MaturityDiagnostics> for SurfaceMaturity {
                     excess: w.excess,
                 }),
             },
+            admissible: None,
+            inadmissible: None,
+            adjusted_knots: None,
+            repricing: None,
         }
+    }
+}
+
+impl SurfaceMaturity {
+    /// Adds the `expected-loss` fields: the maturity's base expected-loss
+    /// curve and its quoted tranches repriced off the surface.
+    fn add_expected_loss(&mut self, curve: &BaseLossCurve, repriced: &[&QuoteRepricing]) {
+        for (k, g) in self.knots.iter_mut().zip(&curve.knot_losses) {
+            k.base_expected_loss = Some(*g);
+            if let Some(r) = repriced
+                .iter()
+                .find(|r| (pct(r.tranche.detach()) - k.detach_pct).abs() < 1e-9)
+            {
+                k.quote_kind = Some(r.quote.kind_name());
+                k.reprice_error = Some(r.error);
+            }
+        }
+        self.admissible = Some(curve.is_admissible());
+        self.inadmissible = Some(curve.inadmissible.iter().map(inadmissible_out).collect());
+        self.adjusted_knots = Some((!curve.is_admissible()).then(|| {
+            curve
+                .adjusted
+                .iter()
+                .map(|a| AdjustedKnotOut {
+                    detach_pct: pct(a.detach),
+                    base_correlation: a.rho,
+                    base_expected_loss: a.loss,
+                    adjusted_base_expected_loss: a.adjusted_loss,
+                    adjusted_base_correlation: a.adjusted_rho.rho,
+                    unattainable: a.adjusted_rho.unattainable(),
+                })
+                .collect()
+        }));
+        self.repricing = Some(
+            repriced
+                .iter()
+                .map(|r| RepricingOut {
+                    attach_pct: pct(r.tranche.attach()),
+                    detach_pct: pct(r.tranche.detach()),
+                    quote_kind: r.quote.kind_name(),
+                    reprice_error: r.error,
+                    base_curve_reprice_error: r.chain_error,
+                })
+                .collect(),
+        );
+    }
+}
+
+fn inadmissible_out(v: &Inadmissible) -> InadmissibleOut {
+    let message = v.to_string();
+    match *v {
+        Inadmissible::SlopeOutsideUnit { from, to, slope } => InadmissibleOut {
+            kind: "slope_outside_unit",
+            k_from_pct: pct(from),
+            k_mid_pct: None,
+            k_to_pct: pct(to),
+            lower_slope: None,
+            upper_slope: slope,
+            message,
+        },
+        Inadmissible::SlopeRises {
+            from,
+            mid,
+            to,
+            lower,
+            upper,
+        } => InadmissibleOut {
+            kind: "slope_rises",
+            k_from_pct: pct(from),
+            k_mid_pct: Some(pct(mid)),
+            k_to_pct: pct(to),
+            lower_slope: Some(lower),
+            upper_slope: upper,
+            message,
+        },
     }
 }
 
@@ -180,7 +368,7 @@ impl From<&MaturityDiagnostics> for SurfaceMaturity {
 pub struct SurfaceDate {
     /// Trade date.
     pub date: String,
-    /// `linear` or `pchip`.
+    /// `linear`, `pchip` or `expected-loss`.
     pub interp: &'static str,
     /// Grid step h, percent.
     pub step_pct: f64,
@@ -216,13 +404,15 @@ pub fn surface_of_date(
 /// [`surface_of_date`] with the knots solved in `model`.
 ///
 /// # Errors
-/// As [`surface_of_date`].
+/// As [`surface_of_date`]; [`crate::ErrorKind::Usage`] for
+/// `expected-loss` in a pool of n names.
 pub fn surface_of_date_with(
     md: &crate::market::MarketDate,
     pool: crate::curve::Pool,
     interp: Interp,
     model: PoolModel,
 ) -> Result<(Surface, crate::curve::Pool)> {
+    check_model(interp, model)?;
     let implied = implied_date_with(md, pool, model)?;
     let surface = Surface::from_implied(&implied, interp)?;
     Ok((surface, implied.pool))
@@ -243,11 +433,25 @@ pub fn build(
     build_with(snapshot, opts, interp, step, only, PoolModel::LargePool)
 }
 
+/// `expected-loss` converts between correlation and expected loss in the
+/// large pool: refused in a pool of n names.
+fn check_model(interp: Interp, model: PoolModel) -> Result<()> {
+    if interp == Interp::ExpectedLoss && model != PoolModel::LargePool {
+        return Err(crate::Error::msg(
+            crate::ErrorKind::Usage,
+            "--interp expected-loss reads correlations back through the large pool: \
+             use linear or pchip with --names",
+        ));
+    }
+    Ok(())
+}
+
 /// [`build`] in a pool model: knots and base expected loss in the large
 /// pool, or in a pool of n names.
 ///
 /// # Errors
-/// As [`build`].
+/// As [`build`]; [`crate::ErrorKind::Usage`] for `expected-loss` in a pool
+/// of n names.
 pub fn build_with(
     snapshot: &Snapshot,
     opts: &MarketOptions,
@@ -256,22 +460,100 @@ pub fn build_with(
     only: Option<NaiveDate>,
     model: PoolModel,
 ) -> Result<SurfaceReport> {
+    check_model(interp, model)?;
     let n = crate::surface::diagnostics::grid_intervals(step)?;
     let snapshot = super::select_date(snapshot, only)?;
     let mut dates = Vec::new();
     for (md, pool) in pools_for_all_dates(&snapshot, opts)? {
-        let (surface, pool) = surface_of_date_with(&md, pool, interp, model)?;
-        let diags = diagnose_with(&surface, &pool, n, model)?;
+        let implied = implied_date_with(&md, pool, model)?;
+        let surface = Surface::from_implied(&implied, interp)?;
+        let pool = &implied.pool;
+        let diags = diagnose_with(&surface, pool, n, model)?;
+        let mut maturities: Vec<SurfaceMaturity> =
+            diags.iter().map(SurfaceMaturity::from).collect();
+        if interp == Interp::ExpectedLoss {
+            let repriced = reprice_quotes(&implied, &surface)?;
+            for (out, m) in maturities.iter_mut().zip(&surface.maturities) {
+                if let Some(curve) = m.loss_curve() {
+                    let mine: Vec<&QuoteRepricing> = repriced
+                        .iter()
+                        .filter(|r| r.maturity == m.maturity)
+                        .collect();
+                    out.add_expected_loss(curve, &mine);
+                }
+            }
+        }
         dates.push(SurfaceDate {
             date: md.date.to_string(),
             interp: interp.name(),
             step_pct: step * 100.0,
             recovery: pool.recovery,
-            maturities: diags.iter().map(SurfaceMaturity::from).collect(),
+            maturities,
             model: super::price::model_field(model),
         });
     }
     Ok(SurfaceReport { dates })
+}
+
+/// The table's notes for the `expected-loss` fields of a maturity.
+fn expected_loss_notes(m: &SurfaceMaturity, notes: &mut Vec<String>) {
+    let Some(inadmissible) = &m.inadmissible else {
+        return;
+    };
+    for v in inadmissible {
+        notes.extend(wrap(&format!("knots not admissible: {}", v.message), 79, 4));
+    }
+    if let Some(Some(adjusted)) = &m.adjusted_knots {
+        let moved: Vec<String> = adjusted
+            .iter()
+            .map(|a| {
+                format!(
+                    "{}% base EL {}% -> {}%, base {}% -> {}%{}",
+                    a.detach_pct,
+                    fixed(a.base_expected_loss * 100.0, 5),
+                    fixed(a.adjusted_base_expected_loss * 100.0, 5),
+                    fixed(a.base_correlation * 100.0, 2),
+                    fixed(a.adjusted_base_correlation * 100.0, 2),
+                    if a.unattainable {
+                        " (out of reach)"
+                    } else {
+                        ""
+                    }
+                )
+            })
+            .collect();
+        notes.extend(wrap(
+            &format!(
+                "moved to the nearest admissible values (isotonic slopes): {}",
+                moved.join("; ")
+            ),
+            79,
+            4,
+        ));
+    }
+    if let Some(repricing) = &m.repricing {
+        let errors: Vec<String> = repricing
+            .iter()
+            .map(|r| {
+                let unit = if r.quote_kind == "spread_bp" {
+                    "bp"
+                } else {
+                    "%"
+                };
+                format!(
+                    "{}-{}% {}{unit}",
+                    r.attach_pct,
+                    r.detach_pct,
+                    r.reprice_error.map_or("-".to_string(), |e| sci(e, 2))
+                )
+            })
+            .collect();
+        notes.extend(wrap(
+            &format!("repricing errors off the surface: {}", errors.join("  ")),
+            79,
+            4,
+        ));
+    }
 }
 
 impl Report for SurfaceReport {
@@ -357,6 +639,7 @@ impl Report for SurfaceReport {
                         sci(w.excess, 3)
                     ));
                 }
+                expected_loss_notes(m, &mut t.notes);
                 out.push(t);
             }
         }

@@ -15,6 +15,9 @@
 //!   "book": { "trades", "priced", "pv", "spread_01", "correlation_01", "recovery_01",
 //!             "jump_to_default" },
 //!   "bucket_note": (with --buckets) a sentence,
+//!   "surface_notes": (with --interp expected-loss, when some maturity's knots
+//!                     are not admissible) [ sentences naming the knots and
+//!                     the values they were moved to ],
 //!   "model": (with --pool-model names) "names_N": the skew solved and every trade priced
 //!            in a pool of N = --names names; absent for the large pool (the default) }
 //! ```
@@ -24,6 +27,7 @@
 //! reason in `flags`.
 
 use super::pools_for_all_dates;
+use crate::book::risk::Risk;
 use crate::book::{value_book_with, BookOptions, Market, Priced, TradeTerms};
 use crate::curve::{MarketOptions, Pool};
 use crate::error::{Error, ErrorKind, Result};
@@ -146,18 +150,9 @@ pub struct TradeRow {
     pub expected_loss: Option<f64>,
     /// s N (P - c Ann), currency.
     pub pv: Option<f64>,
-    /// Currency.
-    pub spread_01: Option<f64>,
-    /// Currency.
-    pub correlation_01: Option<f64>,
-    /// Currency.
-    pub recovery_01: Option<f64>,
-    /// Currency.
-    pub jump_to_default: Option<f64>,
-    /// Currency.
-    pub index_01: Option<f64>,
-    /// Multiple of the trade's notional.
-    pub delta: Option<f64>,
+    /// Risk figures (all null for a trade not priced).
+    #[serde(flatten)]
+    pub risk: Risk,
     /// Flags.
     pub flags: Vec<Flag>,
     /// Bucketed risk (with `--buckets`).
@@ -189,7 +184,7 @@ pub struct BookTotal {
 pub struct ValueReport {
     /// Trade date valued.
     pub date: String,
-    /// `linear` or `pchip`.
+    /// `linear`, `pchip` or `expected-loss`.
     pub interp: &'static str,
     /// Mapping method.
     pub mapping: &'static str,
@@ -206,6 +201,10 @@ pub struct ValueReport {
     /// What bucketed figures add up to (with `--buckets`).
     #[serde(skip_serializing_if = "Option::is_none")]
     pub bucket_note: Option<&'static str>,
+    /// `expected-loss`: maturities whose knots were moved to the nearest
+    /// admissible values, and why (absent when there are none).
+    #[serde(skip_serializing_if = "Vec::is_empty")]
+    pub surface_notes: Vec<String>,
     /// `names_N` when the trades are priced in a pool of N names
     /// (`--pool-model names`); absent for the large pool.
     #[serde(skip_serializing_if = "Option::is_none")]
@@ -294,6 +293,7 @@ pub fn build_with(
             .map(|pool| (p.name.clone(), pool))
         })
         .collect::<Result<Vec<_>>>()?;
+    let surface_notes = repair_notes(&surface);
     let market = Market {
         index,
         surface,
@@ -330,12 +330,7 @@ pub fn build_with(
             upfront_pct: None,
             expected_loss: None,
             pv: None,
-            spread_01: None,
-            correlation_01: None,
-            recovery_01: None,
-            jump_to_default: None,
-            index_01: None,
-            delta: None,
+            risk: Risk::default(),
             flags: Vec::new(),
             buckets: None,
         };
@@ -354,12 +349,7 @@ pub fn build_with(
                 row.pv = Some(v.pv);
                 row.flags = v.flags.clone();
                 if let Some(k) = &r.risk {
-                    row.spread_01 = k.spread_01;
-                    row.correlation_01 = k.correlation_01;
-                    row.recovery_01 = k.recovery_01;
-                    row.jump_to_default = k.jump_to_default;
-                    row.index_01 = k.index_01;
-                    row.delta = k.delta;
+                    row.risk = *k;
                     total.spread_01 += k.spread_01.unwrap_or(0.0);
                     total.correlation_01 += k.correlation_01.unwrap_or(0.0);
                     total.recovery_01 += k.recovery_01.unwrap_or(0.0);
@@ -398,8 +388,43 @@ pub fn build_with(
         trades: rows,
         book: total,
         bucket_note: book.buckets.then_some(BUCKET_NOTE),
+        surface_notes,
         model: super::price::model_field(model),
     })
+}
+
+/// One sentence per maturity whose knots the `expected-loss` surface
+/// repaired: why, and where the knots went.
+fn repair_notes(surface: &crate::surface::Surface) -> Vec<String> {
+    surface
+        .maturities
+        .iter()
+        .filter_map(|m| {
+            let c = m.loss_curve()?;
+            if c.is_admissible() {
+                return None;
+            }
+            let why: Vec<String> = c.inadmissible.iter().map(|v| v.to_string()).collect();
+            let moved: Vec<String> = c
+                .adjusted
+                .iter()
+                .map(|a| {
+                    format!(
+                        "{}% base correlation {} -> {}",
+                        pct(a.detach),
+                        fixed(a.rho, 4),
+                        fixed(a.adjusted_rho.rho, 4)
+                    )
+                })
+                .collect();
+            Some(format!(
+                "{}: {}; the surface uses the nearest admissible knots ({}), so the quotes there do not reprice",
+                m.maturity,
+                why.join("; "),
+                moved.join(", ")
+            ))
+        })
+        .collect()
 }
 
 impl Report for ValueReport {
@@ -459,12 +484,12 @@ impl Report for ValueReport {
             ]);
             risk.push(vec![
                 t.trade_id.clone(),
-                money(t.spread_01),
-                money(t.correlation_01),
-                money(t.recovery_01),
-                money(t.jump_to_default),
-                money(t.index_01),
-                fixed_or(t.delta, 3, "-"),
+                money(t.risk.spread_01),
+                money(t.risk.correlation_01),
+                money(t.risk.recovery_01),
+                money(t.risk.jump_to_default),
+                money(t.risk.index_01),
+                fixed_or(t.risk.delta, 3, "-"),
             ]);
         }
         prices.notes.push(format!(
@@ -475,6 +500,9 @@ impl Report for ValueReport {
         ));
         if let Some(n) = self.note {
             prices.notes.extend(wrap(n, 79, 0));
+        }
+        for n in &self.surface_notes {
+            prices.notes.extend(wrap(n, 79, 4));
         }
         let mut seen: Vec<Flag> = self.trades.iter().flat_map(|t| t.flags.clone()).collect();
         seen.sort();
@@ -579,12 +607,12 @@ impl Report for ValueReport {
                 csv_num(r.upfront_pct),
                 csv_num(r.expected_loss),
                 csv_num(r.pv),
-                csv_num(r.spread_01),
-                csv_num(r.correlation_01),
-                csv_num(r.recovery_01),
-                csv_num(r.jump_to_default),
-                csv_num(r.index_01),
-                csv_num(r.delta),
+                csv_num(r.risk.spread_01),
+                csv_num(r.risk.correlation_01),
+                csv_num(r.risk.recovery_01),
+                csv_num(r.risk.jump_to_default),
+                csv_num(r.risk.index_01),
+                csv_num(r.risk.delta),
                 crate::flags::join(&r.flags, false),
             ];
             if let Some(m) = &self.model {

@@ -19,7 +19,7 @@
 //! broken). The value is never clamped to the end of the range.
 
 use super::compound::{scan_grid, CORRELATION_TOLERANCE, RHO_MAX, RHO_MIN};
-use crate::math::root::{newton_bracketed, Solution};
+use crate::math::root::{newton_bracketed_hermite, Solution};
 use crate::tranche::{BaseLegs, TrancheValuer};
 
 /// Which side of the attainable range a quote fell on.
@@ -64,7 +64,7 @@ pub enum BaseSolve {
 pub fn base_correlation(v: &TrancheValuer, rho_attach: f64) -> BaseSolve {
     let lower = v.lower_legs(rho_attach);
     let ends = [v.upper_legs(RHO_MIN), v.upper_legs(RHO_MAX)];
-    solve_on(v, &lower, &[RHO_MIN, RHO_MAX], &ends)
+    solve_on(v, &lower, &[RHO_MIN, RHO_MAX], &ends).0
 }
 
 /// [`base_correlation`] with the upper base tranche's legs already evaluated
@@ -75,32 +75,73 @@ pub fn base_correlation_from_scan(
     lower: &BaseLegs,
     upper_scan: &[BaseLegs],
 ) -> BaseSolve {
+    base_correlation_with_legs(v, lower, upper_scan).0
+}
+
+/// [`base_correlation_from_scan`], and with a solution the upper base's
+/// legs at it (the last the solver evaluated), so that the caller can
+/// reprice the tranche and start the next link of the chain without
+/// valuing that base again.
+pub fn base_correlation_with_legs(
+    v: &TrancheValuer,
+    lower: &BaseLegs,
+    upper_scan: &[BaseLegs],
+) -> (BaseSolve, Option<BaseLegs>) {
     solve_on(v, lower, &scan_grid(), upper_scan)
 }
 
 /// Polishes the first sign change of the value over `rhos` by bracketed
-/// Newton, or reports which side of the range the quote lies on.
-fn solve_on(v: &TrancheValuer, lower: &BaseLegs, rhos: &[f64], upper: &[BaseLegs]) -> BaseSolve {
+/// Newton (started from the cubic through the values and slopes at the
+/// ends of the interval), or reports which side of the range the quote
+/// lies on. With a solution, also the upper base's legs there.
+fn solve_on(
+    v: &TrancheValuer,
+    lower: &BaseLegs,
+    rhos: &[f64],
+    upper: &[BaseLegs],
+) -> (BaseSolve, Option<BaseLegs>) {
     let legs: Vec<_> = upper.iter().map(|u| v.combine(lower, u, false)).collect();
     let f: Vec<f64> = legs.iter().map(|l| v.value(l)).collect();
     for i in 0..f.len() - 1 {
         if f[i] * f[i + 1] <= 0.0 {
+            // The upper base's legs at the last correlation evaluated.
+            let mut last: Option<(f64, BaseLegs)> = None;
             let fdf = |rho: f64| {
-                let l = v.combine(lower, &v.upper_legs(rho), false);
+                let u = v.upper_legs(rho);
+                last = Some((rho, u));
+                let l = v.combine(lower, &u, false);
                 (v.value(&l), v.d_value(&l))
             };
-            return match newton_bracketed(
+            let solved = newton_bracketed_hermite(
                 fdf,
-                rhos[i],
-                rhos[i + 1],
-                f[i],
-                f[i + 1],
+                (rhos[i], rhos[i + 1]),
+                (f[i], f[i + 1]),
+                (v.d_value(&legs[i]), v.d_value(&legs[i + 1])),
                 CORRELATION_TOLERANCE,
-            ) {
-                Ok(s) => BaseSolve::Solved(s),
-                Err(_) => BaseSolve::Failed {
-                    bracket: (rhos[i], rhos[i + 1]),
-                },
+            );
+            return match solved {
+                Ok(s) => {
+                    let at = |rho: f64| {
+                        if rho == rhos[i] {
+                            upper[i]
+                        } else if rho == rhos[i + 1] {
+                            upper[i + 1]
+                        } else {
+                            match last {
+                                Some((r, u)) if r == rho => u,
+                                _ => v.upper_legs(rho),
+                            }
+                        }
+                    };
+                    let u = at(s.value);
+                    (BaseSolve::Solved(s), Some(u))
+                }
+                Err(_) => (
+                    BaseSolve::Failed {
+                        bracket: (rhos[i], rhos[i + 1]),
+                    },
+                    None,
+                ),
             };
         }
     }
@@ -114,8 +155,11 @@ fn solve_on(v: &TrancheValuer, lower: &BaseLegs, rhos: &[f64], upper: &[BaseLegs
     } else {
         Side::Below
     };
-    BaseSolve::NoSolution {
-        side,
-        range: (q_lo, q_hi),
-    }
+    (
+        BaseSolve::NoSolution {
+            side,
+            range: (q_lo, q_hi),
+        },
+        None,
+    )
 }

@@ -5,15 +5,32 @@
 //! [`implied_date`] is pure (no printing, no shared state), so dates can run
 //! in parallel; reports only format what it returns.
 
-use super::base::{base_correlation_from_scan, BaseSolve, Side};
-use super::compound::{compound_roots_from_scan, scan_grid, CompoundSolve};
+use super::base::{base_correlation_with_legs, BaseSolve, Side};
+use super::compound::{compound_roots_from_scan, scan_grid, CompoundSolve, RHO_MAX, RHO_MIN};
 use crate::curve::Pool;
 use crate::error::Result;
 use crate::flags::Flag;
-use crate::loss::PoolModel;
+use crate::loss::{Correlation, PoolModel};
 use crate::market::{tiles_from_zero, MarketDate, TrancheQuote};
 use crate::tranche::{BaseLegs, Tranche, TrancheSchedule, TrancheValuer};
 use chrono::NaiveDate;
+
+/// How close to a search limit ([`RHO_MIN`], [`RHO_MAX`]) a compound or
+/// base correlation may come before it is flagged
+/// [`Flag::NearSearchLimit`]: 0.005 (0.5%, absolute). A quote in the wrong
+/// unit (a spread of 2.41 meant as 241 bp) solves to the search floor.
+pub const NEAR_LIMIT: f64 = 0.005;
+
+/// Whether `rho` lies within [`NEAR_LIMIT`] of a search limit.
+///
+/// ```
+/// use skewbook::solve::chain::near_limit;
+/// assert!(near_limit(0.0003) && near_limit(0.9993));
+/// assert!(!near_limit(0.18) && !near_limit(0.99));
+/// ```
+pub fn near_limit(rho: f64) -> bool {
+    rho - RHO_MIN <= NEAR_LIMIT || RHO_MAX - rho <= NEAR_LIMIT
+}
 
 /// One knot of a base-correlation curve.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -215,13 +232,17 @@ pub fn implied_maturity(
     let tiles = tiles_from_zero(quotes);
     // Each bound's base-tranche legs on the scan grid, shared by the
     // tranches above and below it (compound scans and base brackets).
-    let grid = scan_grid();
+    // The bivariate normal's rule at each scan correlation, built once.
+    let grid: Vec<Correlation> = scan_grid().iter().map(|&r| Correlation::new(r)).collect();
     let mut scans: Vec<(f64, Vec<BaseLegs>)> = Vec::new();
     for t in quotes {
         for k in [t.attach, t.detach] {
             if !scans.iter().any(|(b, _)| *b == k) {
                 let base = schedule.base(k)?;
-                let legs = grid.iter().map(|&r| schedule.base_legs(&base, r)).collect();
+                let legs = grid
+                    .iter()
+                    .map(|r| schedule.base_legs_at(&base, r))
+                    .collect();
                 scans.push((k, legs));
             }
         }
@@ -238,8 +259,10 @@ pub fn implied_maturity(
         broken: None,
         tiles,
     };
-    // Base correlation at the previous detachment; None once the chain breaks.
-    let mut chain: Option<f64> = Some(0.0);
+    // Base correlation at the previous detachment and the legs of the base
+    // tranche up to it there (the next tranche's lower base, when the bounds
+    // meet exactly); None once the chain breaks.
+    let mut chain: Option<(f64, f64, BaseLegs)> = Some((0.0, 0.0, BaseLegs::default()));
     let mut out = Vec::with_capacity(quotes.len());
     for t in quotes {
         let tranche = Tranche::new(t.attach, t.detach)?;
@@ -258,8 +281,10 @@ pub fn implied_maturity(
             .collect();
         let comp = compound_roots_from_scan(&v, &flat);
         let mut flags = compound_flags(&comp);
-        let reprice_at = |rho_a: f64, rho_d: f64| {
-            let legs = v.legs(rho_a, rho_d);
+        // The quote repriced from the lower base's legs at rho_A and the
+        // upper base's at rho_D.
+        let reprice = |lower: &BaseLegs, upper: &BaseLegs| {
+            let legs = v.combine(lower, upper, false);
             Repriced {
                 error: v
                     .model_quote(&legs)
@@ -267,19 +292,27 @@ pub fn implied_maturity(
                 expected_loss: legs.expected_loss,
             }
         };
-        let (base, repriced) = match chain {
+        let below = chain.map(|(detach, rho_a, legs)| {
+            let lower = if detach == t.attach {
+                legs
+            } else {
+                v.lower_legs(rho_a)
+            };
+            (rho_a, lower)
+        });
+        let (base, repriced) = match below {
             _ if !tiles => (BaseOutcome::NotTiled, None),
             None => {
                 let at = curve.broken.as_ref().map_or(tranche, |b| b.at);
                 (BaseOutcome::ChainBroken { at }, None)
             }
-            Some(rho_a) if tranche.is_top() => (
+            Some((rho_a, lower)) if tranche.is_top() => (
                 BaseOutcome::Top { rho_attach: rho_a },
-                Some(reprice_at(rho_a, rho_a)),
+                Some(reprice(&lower, &v.upper_legs(rho_a))),
             ),
-            Some(rho_a) => {
-                let lower = v.lower_legs(rho_a);
-                let outcome = match base_correlation_from_scan(&v, &lower, upper_scan) {
+            Some((rho_a, lower)) => {
+                let (solved, upper) = base_correlation_with_legs(&v, &lower, upper_scan);
+                let outcome = match solved {
                     BaseSolve::Solved(s) => BaseOutcome::Solved {
                         rho_attach: rho_a,
                         rho_detach: s.value,
@@ -289,13 +322,14 @@ pub fn implied_maturity(
                     }
                     BaseSolve::Failed { bracket } => BaseOutcome::SolverFailed { bracket },
                 };
-                if let BaseOutcome::Solved { rho_detach, .. } = outcome {
-                    chain = Some(rho_detach);
+                if let (BaseOutcome::Solved { rho_detach, .. }, Some(upper)) = (&outcome, upper) {
+                    let rho_detach = *rho_detach;
+                    chain = Some((t.detach, rho_detach, upper));
                     curve.knots.push(Knot {
                         detach: t.detach,
                         rho: rho_detach,
                     });
-                    (outcome, Some(reprice_at(rho_a, rho_detach)))
+                    (outcome, Some(reprice(&lower, &upper)))
                 } else {
                     chain = None;
                     curve.broken = Some(ChainBreak {
@@ -307,6 +341,19 @@ pub fn implied_maturity(
             }
         };
         flags.extend(base_flag(&base));
+        let base_rho = match base {
+            BaseOutcome::Solved { rho_detach, .. } => Some(rho_detach),
+            _ => None,
+        };
+        if comp
+            .roots
+            .iter()
+            .map(|r| r.value)
+            .chain(base_rho)
+            .any(near_limit)
+        {
+            flags.push(Flag::NearSearchLimit);
+        }
         out.push(TrancheImplied {
             quote: (*t).clone(),
             compound: Some(comp),

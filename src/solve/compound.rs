@@ -12,12 +12,13 @@
 //! 1. a scan of value and analytic derivative on [`SCAN_POINTS`] correlations
 //!    in [[`RHO_MIN`], [`RHO_MAX`]], spaced as rho = sin²θ with θ uniform
 //!    (denser near 0 and 1, where the value moves fastest);
-//! 2. each sign change is polished by bracketed Newton;
+//! 2. each sign change is polished by bracketed Newton, started from the
+//!    root of the cubic through the scan's values and slopes at its ends;
 //! 3. an interval whose ends share a sign but whose derivative changes
 //!    sign towards zero hides an extremum: it is located (Brent on the
 //!    derivative) and, if the value there crosses zero, both roots are polished.
 
-use crate::math::root::{brent, newton_bracketed, Solution, Tolerance};
+use crate::math::root::{brent, newton_bracketed_hermite, Solution, Tolerance};
 use crate::tranche::{TrancheLegs, TrancheValuer};
 
 /// Lower end of the correlation search.
@@ -135,7 +136,13 @@ pub fn compound_roots_from_scan(v: &TrancheValuer, scan: &[TrancheLegs]) -> Comp
     };
     let mut failures = 0;
     let mut polish = |a: &Sample, b: &Sample| {
-        let s = newton_bracketed(fdf, a.rho, b.rho, a.value, b.value, CORRELATION_TOLERANCE);
+        let s = newton_bracketed_hermite(
+            fdf,
+            (a.rho, b.rho),
+            (a.value, b.value),
+            (a.slope, b.slope),
+            CORRELATION_TOLERANCE,
+        );
         if s.is_err() {
             failures += 1;
         }

@@ -5,9 +5,16 @@
 //!   (linear in curve time), flat outside, with extrapolation reported;
 //! - [`diagnostics`]: base expected loss on a detachment grid, the implied
 //!   exceedance curve (tranchelet expected loss) and the no-arbitrage checks
-//!   in detachment and in maturity.
+//!   in detachment and in maturity;
+//! - [`expected_loss`]: the `expected-loss` interpolation, base expected
+//!   loss interpolated by a rising concave spline (repaired to the nearest
+//!   admissible knot values when the quotes allow none), and the
+//!   correlation read back off it;
+//! - [`reprice`]: every quoted tranche priced back off the surface.
 
 pub mod diagnostics;
+pub mod expected_loss;
+pub mod reprice;
 pub mod skew;
 
 pub use diagnostics::{diagnose, MaturityDiagnostics};

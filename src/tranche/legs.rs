@@ -194,55 +194,59 @@ impl TrancheSchedule {
         if base.detach <= 0.0 {
             return BaseLegs::default();
         }
-        if let Some(pool) = &self.finite {
-            let corr = Correlation::new(rho);
-            return self.sum_legs(|h| base.finite(h, &corr, pool), None);
+        if self.finite.is_some() {
+            return self.base_legs_at(base, &Correlation::new(rho));
         }
         match method {
             // The closed form's fast path: the bivariate normal's rule for
             // this correlation is built once for every date.
-            Method::ClosedForm => {
-                let corr = Correlation::new(rho);
-                self.sum_legs(|h| base.closed_form(h, &corr), None)
-            }
-            Method::Quadrature => self.sum_legs(|h| base.expectation(h, rho, method), None),
+            Method::ClosedForm => self.base_legs_at(base, &Correlation::new(rho)),
+            Method::Quadrature => self.sum_legs(|h| base.expectation(h, rho, method)),
+        }
+    }
+
+    /// [`Self::base_legs`] at a precomputed correlation (the bivariate
+    /// normal's rule built once for several base tranches).
+    pub fn base_legs_at(&self, base: &BaseTranche, corr: &Correlation) -> BaseLegs {
+        if base.detach <= 0.0 {
+            return BaseLegs::default();
+        }
+        match &self.finite {
+            Some(pool) => self.sum_legs(|h| base.finite(h, corr, pool)),
+            None => self.sum_legs(|h| base.closed_form(h, corr)),
         }
     }
 
     /// [`Self::base_legs`] and, in the same pass, the expected loss
-    /// E[min(L, K)] at step-in and at every period end (pool units).
+    /// E[min(L, K)] at step-in and at every period end (the dates at which
+    /// the legs read it), pool units.
     pub fn base_legs_and_losses(&self, base: &BaseTranche, rho: f64) -> (BaseLegs, Vec<f64>) {
         if base.detach <= 0.0 {
             return (BaseLegs::default(), vec![0.0; self.horizons.len()]);
         }
         let corr = Correlation::new(rho);
-        let mut path = Vec::with_capacity(self.horizons.len());
-        let legs = match &self.finite {
-            Some(pool) => self.sum_legs(|h| base.finite(h, &corr, pool), Some(&mut path)),
-            None => self.sum_legs(|h| base.closed_form(h, &corr), Some(&mut path)),
-        };
-        (legs, path)
+        let path = std::cell::RefCell::new(Vec::with_capacity(self.horizons.len()));
+        let legs = self.sum_legs(|h| {
+            let e = match &self.finite {
+                Some(pool) => base.finite(h, &corr, pool),
+                None => base.closed_form(h, &corr),
+            };
+            path.borrow_mut().push(e.loss);
+            e
+        });
+        (legs, path.into_inner())
     }
 
-    /// Sums the legs over the schedule from the base expectation at each
-    /// date, pushing each date's expected loss onto `path` when given.
-    fn sum_legs(
-        &self,
-        at: impl Fn(&Horizon) -> BaseExpectation,
-        mut path: Option<&mut Vec<f64>>,
-    ) -> BaseLegs {
+    /// Sums the legs over the schedule from the base expectation at each date.
+    fn sum_legs(&self, at: impl Fn(&Horizon) -> BaseExpectation) -> BaseLegs {
         let mut legs = BaseLegs::default();
         let mut prev = at(&self.horizons[0]);
-        if let Some(p) = path.as_deref_mut() {
-            p.push(prev.loss);
-        }
-        for (i, h) in self.horizons[1..].iter().enumerate() {
+        for ((h, &df), &w) in self.horizons[1..]
+            .iter()
+            .zip(&self.df_pay)
+            .zip(&self.half_accrual_df)
+        {
             let cur = at(h);
-            if let Some(p) = path.as_deref_mut() {
-                p.push(cur.loss);
-            }
-            let df = self.df_pay[i];
-            let w = self.half_accrual_df[i];
             legs.protection += df * (cur.loss - prev.loss);
             legs.d_protection += df * (cur.dloss_drho - prev.dloss_drho);
             legs.annuity += w * (prev.outstanding + cur.outstanding);

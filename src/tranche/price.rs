@@ -15,7 +15,7 @@
 use super::bounds::Tranche;
 use super::legs::{BaseLegs, TrancheSchedule};
 use crate::error::Result;
-use crate::loss::BaseTranche;
+use crate::loss::{BaseTranche, Correlation};
 use crate::market::Quote;
 
 /// Legs of one tranche per unit of tranche notional.
@@ -112,8 +112,10 @@ impl<'a> TrancheValuer<'a> {
 
     /// Legs at one flat correlation, derivatives in that correlation.
     pub fn legs_flat(&self, rho: f64) -> TrancheLegs {
-        let d = self.upper_legs(rho);
-        let a = self.lower_legs(rho);
+        // One bivariate normal rule for both bases.
+        let corr = Correlation::new(rho);
+        let d = self.schedule.base_legs_at(&self.upper, &corr);
+        let a = self.schedule.base_legs_at(&self.lower, &corr);
         self.combine(&a, &d, true)
     }
 

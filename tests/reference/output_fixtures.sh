@@ -4,7 +4,7 @@
 # when an output is meant to change, and say why in the commit.
 set -euo pipefail
 cd "$(dirname "$0")/../.."
-bin=target/release/skewbook
+bin=${SKEWBOOK_BIN:-target/release/skewbook}
 out=tests/fixtures/outputs
 mkdir -p "$out"
 : >"$out/commands.tsv"

@@ -35,6 +35,12 @@ pub enum Command {
     Surface(SurfaceArgs),
     /// A book of tranche trades priced off one date's skew, with risk.
     Value(ValueArgs),
+    /// Pictures of one date's skew as SVG files: skew per maturity, each
+    /// tranche's quote against correlation, loss exceedance, skew history.
+    Chart(ChartArgs),
+    /// One self-contained HTML page: tables, charts, flags explained,
+    /// assumptions and cautions.
+    Report(ReportArgs),
     /// The skew through time: base and compound correlations per date, and
     /// their change since the previous date.
     SkewHistory(SkewHistoryArgs),
@@ -67,6 +73,9 @@ pub enum InterpArg {
     Linear,
     /// Monotone piecewise-cubic Hermite (Fritsch-Carlson), flat outside.
     Pchip,
+    /// Base expected loss by a rising concave spline, correlation read back off it (no arbitrage in detachment).
+    #[value(name = "expected-loss")]
+    ExpectedLoss,
 }
 
 impl From<InterpArg> for skewbook::math::interp::Interp {
@@ -74,6 +83,7 @@ impl From<InterpArg> for skewbook::math::interp::Interp {
         match i {
             InterpArg::Linear => skewbook::math::interp::Interp::Linear,
             InterpArg::Pchip => skewbook::math::interp::Interp::Pchip,
+            InterpArg::ExpectedLoss => skewbook::math::interp::Interp::ExpectedLoss,
         }
     }
 }
@@ -119,9 +129,6 @@ pub struct SurfaceArgs {
         allow_negative_numbers = true
     )]
     pub step_pct: f64,
-    /// Only this trade date of a history (ISO 8601); default every date.
-    #[arg(long, value_name = "YYYY-MM-DD")]
-    pub date: Option<chrono::NaiveDate>,
     #[command(flatten)]
     pub pool: PoolArgs,
 }
@@ -231,9 +238,36 @@ pub struct MarketArgs {
     pub file: String,
     #[command(flatten)]
     pub curve: CurveChoiceArgs,
+    #[command(flatten)]
+    pub dates: DateArgs,
     /// Output format.
     #[arg(long, value_enum, default_value_t)]
     pub format: FormatArg,
+}
+
+/// Which trade dates of a history to run (default every date).
+#[derive(Debug, Args)]
+pub struct DateArgs {
+    /// Only this trade date of a history (ISO 8601).
+    #[arg(long, value_name = "YYYY-MM-DD", conflicts_with_all = ["from", "to"])]
+    pub date: Option<chrono::NaiveDate>,
+    /// No trade date before this one (ISO 8601, included).
+    #[arg(long, value_name = "YYYY-MM-DD")]
+    pub from: Option<chrono::NaiveDate>,
+    /// No trade date after this one (ISO 8601, included).
+    #[arg(long, value_name = "YYYY-MM-DD")]
+    pub to: Option<chrono::NaiveDate>,
+}
+
+impl DateArgs {
+    /// The filter the library applies.
+    pub fn filter(&self) -> skewbook::report::DateFilter {
+        skewbook::report::DateFilter {
+            date: self.date,
+            from: self.from,
+            to: self.to,
+        }
+    }
 }
 
 /// `skewbook curve`.
@@ -297,6 +331,20 @@ pub struct PriceArgs {
 pub struct ImpliedArgs {
     #[command(flatten)]
     pub market: MarketArgs,
+    /// Largest gap in bp of running spread between the protection a
+    /// maturity's tranche quotes imply (when they tile 0-100%) and the index
+    /// curve's; a larger gap flags the maturity `index_mismatch`.
+    #[arg(
+        long,
+        value_name = "BP",
+        default_value_t = skewbook::consistency::DEFAULT_TOLERANCE_BP,
+        allow_negative_numbers = true
+    )]
+    pub index_tolerance: f64,
+    /// No progress bar (one is drawn on standard error only when it is a
+    /// terminal, outside CI, for more than 20 dates).
+    #[arg(long, short)]
+    pub quiet: bool,
     #[command(flatten)]
     pub pool: PoolArgs,
     /// With `--names`: also solve every quote in the large pool and print
@@ -410,6 +458,96 @@ pub struct RealworldArgs {
     /// Output format.
     #[arg(long, value_enum, default_value_t)]
     pub format: FormatArg,
+}
+
+/// Estimator of the real-world curve.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+#[value(rename_all = "snake_case")]
+pub enum EstimatorArg {
+    /// Maximum likelihood of the binomial mixture (counts).
+    BinomialMl,
+    /// Maximum likelihood on probit-transformed default rates.
+    ProbitMoments,
+    /// Mean and variance of the default rates matched.
+    MomentMatching,
+    /// Mean rate and joint default probability matched (counts).
+    JointDefaultMoments,
+}
+
+impl From<EstimatorArg> for skewbook::realworld::estimators::Method {
+    fn from(e: EstimatorArg) -> Self {
+        use skewbook::realworld::estimators::Method;
+        match e {
+            EstimatorArg::BinomialMl => Method::BinomialMl,
+            EstimatorArg::ProbitMoments => Method::ProbitMoments,
+            EstimatorArg::MomentMatching => Method::MomentMatching,
+            EstimatorArg::JointDefaultMoments => Method::JointDefaultMoments,
+        }
+    }
+}
+
+/// What `chart` and `report` draw from.
+#[derive(Debug, Args)]
+pub struct PictureArgs {
+    /// Snapshot CSV file (`-` reads standard input); its last trade date is drawn.
+    pub file: String,
+    /// A history of snapshots (CSV with many trade dates) for the skew through time.
+    #[arg(long, value_name = "FILE")]
+    pub history: Option<String>,
+    /// The index pool's default history (CSV) for the real-world loss curve.
+    #[arg(long, value_name = "FILE")]
+    pub defaults: Option<String>,
+    /// Trade date of the snapshot to draw (ISO 8601); default its last.
+    #[arg(long, value_name = "YYYY-MM-DD")]
+    pub date: Option<chrono::NaiveDate>,
+    /// Detachments in percent, comma-separated, each in (0, 100) (3,7,10
+    /// means 3%, 7%, 10%), read off each date's skew in the history chart.
+    #[arg(
+        long,
+        value_name = "PCT,PCT",
+        value_delimiter = ',',
+        allow_hyphen_values = true
+    )]
+    pub at: Vec<f64>,
+    /// Interpolation of the skew for --at.
+    #[arg(long, value_enum, default_value_t)]
+    pub interp: InterpArg,
+    /// Loss grid step in percent for the exceedance curves; must divide 100.
+    #[arg(
+        long,
+        value_name = "PCT",
+        default_value_t = 0.5,
+        allow_negative_numbers = true
+    )]
+    pub step_pct: f64,
+    /// Estimator of the real-world curve; default the first that gives PD,
+    /// rho and both 95% intervals of binomial_ml, probit_moments,
+    /// moment_matching, joint_default_moments.
+    #[arg(long, value_enum)]
+    pub estimator: Option<EstimatorArg>,
+    /// `--recovery` and `--rate` for the snapshot and the history.
+    #[command(flatten)]
+    pub curve: CurveChoiceArgs,
+}
+
+/// `skewbook chart`.
+#[derive(Debug, Args)]
+pub struct ChartArgs {
+    #[command(flatten)]
+    pub picture: PictureArgs,
+    /// Directory the SVG files are written to (made if missing).
+    #[arg(long, value_name = "DIR")]
+    pub out: String,
+}
+
+/// `skewbook report`.
+#[derive(Debug, Args)]
+pub struct ReportArgs {
+    #[command(flatten)]
+    pub picture: PictureArgs,
+    /// The HTML file to write (`-` writes to standard output).
+    #[arg(long, value_name = "FILE.html")]
+    pub out: String,
 }
 
 #[cfg(test)]

@@ -9,13 +9,13 @@ use skewbook::output::write_report;
 use std::io::Write;
 
 /// Reads the snapshot and the market options shared by every snapshot command,
-/// printing the snapshot's warnings to standard error.
+/// keeps the dates of `--date`, `--from` and `--to`, and prints the
+/// warnings of those dates to standard error.
 pub fn load(m: &MarketArgs) -> Result<(Snapshot, MarketOptions), Failure> {
     let opts = m.curve.options()?;
     let snapshot = read_snapshot(&m.file)?;
-    for w in &snapshot.warnings {
-        eprintln!("warning: {w}");
-    }
+    let snapshot = skewbook::report::filter_dates(&snapshot, &m.dates.filter())?;
+    crate::print_problems("warning", &snapshot.warnings);
     Ok((snapshot, opts))
 }
 

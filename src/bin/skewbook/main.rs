@@ -13,12 +13,14 @@
 //! 141); exiting 0 keeps `set -o pipefail` scripts from failing on a
 //! `head`, as the output the reader wanted was delivered.
 
+mod chart;
 mod cli;
 mod curve;
 mod implied;
 mod loss;
 mod price;
 mod realworld;
+mod report;
 mod skew_history;
 mod surface;
 mod units;
@@ -47,6 +49,8 @@ fn run(cli: Cli, out: &mut dyn Write) -> Result<Outcome, Failure> {
         Command::Surface(a) => surface::run(a, out),
         Command::Value(a) => value::run(a, out),
         Command::SkewHistory(a) => skew_history::run(a, out),
+        Command::Chart(a) => chart::run(a, out),
+        Command::Report(a) => report::run(a, out),
     }
 }
 
@@ -81,6 +85,15 @@ impl From<io::Error> for Failure {
     }
 }
 
+/// Prints problems on standard error, `prefix: ` before each, at most
+/// [`skewbook::error::MAX_LINES_PER_FILE`] of each file and then one line
+/// "and N more like this".
+pub fn print_problems(prefix: &str, problems: &[skewbook::error::Problem]) {
+    for line in skewbook::error::capped(problems, skewbook::error::MAX_LINES_PER_FILE) {
+        eprintln!("{prefix}: {line}");
+    }
+}
+
 fn main() -> ExitCode {
     let cli = match Cli::try_parse() {
         Ok(c) => c,
@@ -112,9 +125,7 @@ fn main() -> ExitCode {
             ExitCode::from(2)
         }
         Err(Failure::Lib(e)) => {
-            for p in &e.problems {
-                eprintln!("error: {p}");
-            }
+            print_problems("error", &e.problems);
             ExitCode::from(e.exit_code())
         }
     }

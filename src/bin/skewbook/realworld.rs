@@ -33,12 +33,11 @@ pub fn run(args: crate::cli::RealworldArgs, out: &mut dyn Write) -> Result<Outco
     };
     let market = args.curve.options()?;
     let history = read_history(&args.file)?;
+    crate::print_problems("warning", &history.warnings);
     let mut report = build_realworld(&history, &opts, &levels, lgd)?;
     if let Some(path) = &args.against {
         let snapshot = skewbook::input::snapshot::read_snapshot(path)?;
-        for w in &snapshot.warnings {
-            eprintln!("warning: {w}");
-        }
+        crate::print_problems("warning", &snapshot.warnings);
         add_risk_neutral(&mut report, &snapshot, &market)?;
     }
     write_report(out, &report, args.format.into())?;

@@ -33,9 +33,7 @@ pub fn run(args: ValueArgs, out: &mut dyn Write) -> Result<Outcome, Failure> {
     }
     let opts = args.curve.options()?;
     let snapshot = read_snapshot(&args.skew)?;
-    for w in &snapshot.warnings {
-        eprintln!("warning: {w}");
-    }
+    crate::print_problems("warning", &snapshot.warnings);
     let book = read_trades(&args.trades)?;
     let pools = match &args.pools {
         Some(p) => Some(read_pools(p)?),
