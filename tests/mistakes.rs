@@ -393,6 +393,101 @@ fn a_top_tranche_quote_off_the_index_is_flagged_with_the_gap() {
     assert!(err.contains("--index-tolerance: expected a number of bp of 0 or more, found -1"));
 }
 
+/// Fractions typed in the snapshot's percent and bp columns are read as
+/// written, with a warning that names the mistake: a recovery of 0.4,
+/// index spreads below 1 bp, zero rates below 0.1%, bounds up to 1%; and a
+/// pool recovery of 0.35 in the pools file.
+#[test]
+fn fractions_in_percent_or_bp_columns_draw_warnings() {
+    let sample = std::fs::read_to_string(HGX).expect("sample");
+    let divide = |text: &str, cells: &[usize], by: &str, rows: &str| -> String {
+        text.lines()
+            .map(|l| {
+                if !l.contains(rows) {
+                    return l.to_string();
+                }
+                let mut c: Vec<String> = l.split(',').map(str::to_string).collect();
+                for &i in cells {
+                    if !c[i].is_empty() {
+                        c[i] = format!("{}{by}", c[i]);
+                    }
+                }
+                c.join(",")
+            })
+            .collect::<Vec<_>>()
+            .join("\n")
+    };
+    for (name, text, command, code, says) in [
+        (
+            "recovery_fraction",
+            sample.replace(",40\n", ",0.4\n"),
+            "curve",
+            0,
+            ":2:9: column \"recovery_pct\": a recovery of \"0.4\" on 2026-06-18 is read as 0.4%; \
+             if it is a fraction (0.4 meaning 40%), write 40 (recovery_pct is in percent)",
+        ),
+        (
+            "index_spreads_in_percent",
+            divide(&sample, &[6], "e-2", ",index,"),
+            "curve",
+            0,
+            ":2:7: column \"quote\": every index spread of 2026-06-18 is below 1 bp (the largest \
+             is 0.88): spreads are in basis points; if these are percents (0.88 meaning 88 bp), \
+             multiply them by 100",
+        ),
+        (
+            "zero_rates_as_fractions",
+            divide(&sample, &[6], "e-2", ",zero,"),
+            "curve",
+            0,
+            ":6:7: column \"quote\": every zero rate of 2026-06-18 is below 0.1% in size (the \
+             largest is 0.0305): zero rates are in percent; if these are fractions (0.0305 \
+             meaning 3.05%), multiply them by 100",
+        ),
+        (
+            "bounds_as_fractions",
+            divide(&sample, &[3, 4], "e-2", ",tranche,"),
+            "implied",
+            1,
+            ":10:5: column \"detach_pct\": every detachment of 2026-06-18 is at most 1% of the \
+             pool (the largest is 1): bounds are in percent; if these are fractions (1 meaning \
+             100%), multiply them by 100",
+        ),
+    ] {
+        let path = write_temp(name, text);
+        let (got, _, err) = skewbook(&[command, &path, "--format", "json"]);
+        assert_eq!(got, code, "{name}: {err}");
+        let want = format!("warning: {path}{says}");
+        assert!(
+            err.lines().any(|l| l == want),
+            "{name}: expected\n{want}\nfound\n{err}"
+        );
+    }
+    let pools = std::fs::read_to_string("market-samples/kcx-pools.csv")
+        .expect("pools")
+        .replace(",35\n", ",0.35\n");
+    let pools = write_temp("pool_recovery_fraction", pools);
+    let (code, _, err) = skewbook(&[
+        "value",
+        "market-samples/kcx-trades.csv",
+        "--skew",
+        "market-samples/kcx-2026-06-18.csv",
+        "--pools",
+        &pools,
+        "--format",
+        "json",
+    ]);
+    assert!(code <= 1, "{err}");
+    assert!(
+        err.contains(&format!(
+            "warning: {pools}:2:6: column \"recovery_pct\": a recovery of \"0.35\" for pool \
+             \"alder-midcap\" is read as 0.35%; if it is a fraction, write it in percent (0.35 \
+             meaning 35%)"
+        )),
+        "{err}"
+    );
+}
+
 // ------------------------------------------------- issue 9: default histories
 
 /// Rates typed as fractions in a percent column (every one below 0.1) and

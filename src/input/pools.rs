@@ -83,6 +83,9 @@ pub struct Pools {
     pub pools: Vec<BespokePool>,
     /// 1-based column of `maturity` in the file, for later located errors.
     pub maturity_column: usize,
+    /// Likely mistakes read as written: a pool recovery below 1 (percent),
+    /// which looks like a fraction (0.35 for 35%).
+    pub warnings: Vec<Problem>,
 }
 
 impl Pools {
@@ -190,12 +193,14 @@ pub fn parse_pools(text: &str, path: &str) -> Result<Pools> {
         ));
     }
 
-    let pools = assemble(&sheet, rows, &mut problems);
+    let mut warnings = Vec::new();
+    let pools = assemble(&sheet, rows, &mut problems, &mut warnings);
     cells::finish(
         Pools {
             path: path.to_string(),
             pools,
             maturity_column: sheet.col(MATURITY).map_or(0, |i| i + 1),
+            warnings,
         },
         problems,
     )
@@ -271,13 +276,32 @@ fn pool_row<'r>(mut row: Row<'_, 'r, '_>) -> Option<PoolRow<'r>> {
 
 /// Groups the rows by pool in order of first appearance, with the checks
 /// across rows: one quote per pool and maturity, one recovery per pool.
-fn assemble(sheet: &Header, rows: Vec<PoolRow>, problems: &mut Vec<Problem>) -> Vec<BespokePool> {
+fn assemble(
+    sheet: &Header,
+    rows: Vec<PoolRow>,
+    problems: &mut Vec<Problem>,
+    warnings: &mut Vec<Problem>,
+) -> Vec<BespokePool> {
     let mut pools: Vec<BespokePool> = Vec::new();
     // Per pool: its index in `pools`, and the first row's recovery text and line.
     let mut first: HashMap<&str, (usize, &str, u64)> = HashMap::new();
     let mut quoted_at: HashMap<(usize, NaiveDate), u64> = HashMap::new();
     for r in &rows {
         let (i, recovery_text, recovery_line) = *first.entry(r.pool).or_insert_with(|| {
+            if r.recovery.0 > 0.0 && r.recovery.0 < 0.01 {
+                warnings.push(Problem::at(
+                    sheet.at(r.line, RECOVERY),
+                    format!(
+                        "a recovery of {} for pool {} is read as {}%; if it is a fraction, \
+                         write it in percent ({} meaning {}%)",
+                        quoted(r.recovery.1),
+                        quoted(r.pool),
+                        r.recovery.1,
+                        r.recovery.1,
+                        crate::output::significant(r.recovery.0 * 1e4, 6)
+                    ),
+                ));
+            }
             pools.push(BespokePool {
                 name: r.pool.to_string(),
                 recovery: r.recovery.0,

@@ -27,6 +27,13 @@
 //! (line numbers still count them); every other line is a row and is either
 //! accepted or reported, never silently dropped.
 //!
+//! # Numbers that look like fractions are a warning
+//!
+//! A recovery below 1, every index spread of a date below 1 bp, every zero
+//! rate below 0.1% in size, or every detachment at most 1% is read as
+//! written, with a warning in [`Snapshot::warnings`] naming the likely
+//! mistake: a fraction typed in a percent or bp column.
+//!
 //! # Tranches that do not tile are a warning, not an error
 //!
 //! Tranches of one date and maturity whose bounds, sorted by attachment, do
@@ -465,6 +472,11 @@ fn assemble(
         let recovery = index_rows
             .first()
             .and_then(|r| r.recovery.as_ref().map(|x| x.0));
+        let recovery_at = index_rows.first().and_then(|r| {
+            r.recovery
+                .as_ref()
+                .map(|(v, text)| (r.line, *v, text.clone()))
+        });
         if let Some(first) = index_rows.first() {
             let describe = |r: &Row| match &r.recovery {
                 Some((_, text)) => quoted(text),
@@ -545,6 +557,13 @@ fn assemble(
         zeros.sort_by_key(|z| (z.date, z.line));
 
         tiling_warnings(sheet, date, &tranches, &mut warnings);
+        unit_warnings(
+            sheet,
+            date,
+            recovery_at,
+            (&index, &tranches, &zeros),
+            &mut warnings,
+        );
         // Past the last index maturity the hazard curve is only extended flat.
         if let Some(last) = index.last().map(|q| q.maturity) {
             let mut seen = Vec::new();
@@ -575,6 +594,89 @@ fn assemble(
         path: sheet.path.to_string(),
         dates,
         warnings,
+    }
+}
+
+/// Warnings for a date whose numbers all look like fractions typed in a
+/// percent or bp column: a recovery below 1 (0.4 for 40%), every index
+/// spread below 1 bp (0.6 for 60 bp), every zero rate below 0.1 in size
+/// (0.0215 for 2.15%), every detachment at most 1 (0.03 for 3%). Each is
+/// read as written; the warning names the likely mistake.
+fn unit_warnings(
+    sheet: &Header,
+    date: NaiveDate,
+    recovery: Option<(u64, f64, String)>,
+    (index, tranches, zeros): (&[IndexQuote], &[TrancheQuote], &[ZeroPillar]),
+    warnings: &mut Vec<Problem>,
+) {
+    use crate::output::significant;
+    if let Some((line, r, text)) = recovery {
+        if r > 0.0 && r < 0.01 {
+            warnings.push(Problem::at(
+                sheet.at(line, RECOVERY),
+                format!(
+                    "a recovery of {} on {date} is read as {}%; if it is a fraction ({} meaning \
+                     {}%), write {} (recovery_pct is in percent)",
+                    quoted(&text),
+                    text,
+                    text,
+                    significant(r * 1e4, 6),
+                    significant(r * 1e4, 6)
+                ),
+            ));
+        }
+    }
+    let spreads: Vec<(u64, f64)> = index
+        .iter()
+        .filter_map(|q| match q.quote {
+            Quote::Spread(s) => Some((q.line, s * 1e4)),
+            Quote::Upfront { .. } => None,
+        })
+        .collect();
+    let largest = spreads.iter().map(|s| s.1).fold(0.0, f64::max);
+    if spreads.len() == index.len() && largest > 0.0 && largest < 1.0 {
+        warnings.push(Problem::at(
+            sheet.at(spreads[0].0, QUOTE),
+            format!(
+                "every index spread of {date} is below 1 bp (the largest is {}): spreads are in \
+                 basis points; if these are percents ({} meaning {} bp), multiply them by 100",
+                significant(largest, 6),
+                significant(largest, 6),
+                significant(largest * 100.0, 6)
+            ),
+        ));
+    }
+    let largest = zeros
+        .iter()
+        .map(|z| z.rate.abs() * 100.0)
+        .fold(0.0, f64::max);
+    if let (Some(z), true) = (zeros.first(), largest > 0.0 && largest < 0.1) {
+        warnings.push(Problem::at(
+            sheet.at(z.line, QUOTE),
+            format!(
+                "every zero rate of {date} is below 0.1% in size (the largest is {}): zero rates \
+                 are in percent; if these are fractions ({} meaning {}%), multiply them by 100",
+                significant(largest, 6),
+                significant(largest, 6),
+                significant(largest * 100.0, 6)
+            ),
+        ));
+    }
+    let largest = tranches
+        .iter()
+        .map(|t| t.detach * 100.0)
+        .fold(0.0, f64::max);
+    if let (Some(t), true) = (tranches.first(), largest <= 1.0) {
+        warnings.push(Problem::at(
+            sheet.at(t.line, DETACH),
+            format!(
+                "every detachment of {date} is at most 1% of the pool (the largest is {}): bounds \
+                 are in percent; if these are fractions ({} meaning {}%), multiply them by 100",
+                significant(largest, 6),
+                significant(largest, 6),
+                significant(largest * 100.0, 6)
+            ),
+        ));
     }
 }
 

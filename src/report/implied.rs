@@ -293,16 +293,16 @@ fn check_note(t: &TrancheImplied) -> Option<String> {
     if let Some(b) = t.base_correlation().filter(|b| near_limit(*b)) {
         near.push(format!("base correlation {}", pct_text(b)));
     }
+    let all: Vec<f64> = t
+        .compound
+        .iter()
+        .flat_map(|c| c.roots.iter().map(|r| r.value))
+        .chain(t.base_correlation())
+        .filter(|r| near_limit(*r))
+        .collect();
+    let floor = all.iter().any(|r| *r < 0.5);
+    let ceiling = all.iter().any(|r| *r >= 0.5);
     let limits = {
-        let all: Vec<f64> = t
-            .compound
-            .iter()
-            .flat_map(|c| c.roots.iter().map(|r| r.value))
-            .chain(t.base_correlation())
-            .filter(|r| near_limit(*r))
-            .collect();
-        let floor = all.iter().any(|r| *r < 0.5);
-        let ceiling = all.iter().any(|r| *r >= 0.5);
         match (floor, ceiling) {
             (true, true) => format!(
                 "the search limits {} and {}",
@@ -315,8 +315,15 @@ fn check_note(t: &TrancheImplied) -> Option<String> {
     };
     let unit = unit_hint(&t.quote.quote);
     let verb = if near.len() > 1 { "lie" } else { "lies" };
+    // A mezzanine's second compound root near 100% is a fact of the model.
+    let second_root = t.compound.as_ref().is_some_and(|c| c.roots.len() == 2);
+    let genuine = if ceiling && !floor && second_root && t.base_correlation().is_some() {
+        " (a mezzanine's second compound root near 100% can be genuine)"
+    } else {
+        ""
+    };
     Some(format!(
-        "{} {verb} within {} of {limits}: check the quote's unit: {unit}",
+        "{} {verb} within {} of {limits}: check the quote's unit: {unit}{genuine}",
         near.join(" and "),
         pct_text(NEAR_LIMIT)
     ))

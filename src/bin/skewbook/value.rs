@@ -39,6 +39,9 @@ pub fn run(args: ValueArgs, out: &mut dyn Write) -> Result<Outcome, Failure> {
         Some(p) => Some(read_pools(p)?),
         None => None,
     };
+    if let Some(p) = &pools {
+        crate::print_problems("warning", &p.warnings);
+    }
     let date = match args.date.or(snapshot.dates.last().map(|d| d.date)) {
         Some(d) => d,
         None => return Err(usage(format!("{}: no trade date", snapshot.path))),
