@@ -566,6 +566,11 @@ mod command_line {
         let pv = |v: &serde_json::Value| v["trades"][0]["pv"].as_f64();
         assert_eq!(pv(&large), pv(&names_only));
         assert_ne!(pv(&large), pv(&finite));
+        // jump-to-default in the 100-name pool: the tranche left is valued
+        // in the 99 names that survive
+        let jtd = |v: &serde_json::Value| v["trades"][0]["jump_to_default"].as_f64();
+        assert!(jtd(&finite).is_some_and(f64::is_finite));
+        assert_ne!(jtd(&finite), jtd(&names_only));
     }
 
     #[test]
@@ -574,10 +579,19 @@ mod command_line {
             vec!["implied", HGX, "--compare-pool"],
             vec!["price", HGX, "--correlation", "30", "--names", "0"],
             vec!["implied", HGX, "--names", "-3"],
+            // expected-loss reads correlations back through the large pool
+            vec![
+                "surface",
+                HGX,
+                "--names",
+                "125",
+                "--interp",
+                "expected-loss",
+            ],
         ] {
             let (code, out, err) = skewbook(&args);
             assert_eq!(code, 2, "{args:?}: {err}");
-            assert!(out.is_empty() && err.contains("names"), "{err}");
+            assert!(out.is_empty() && err.contains("--names"), "{err}");
         }
     }
 }
