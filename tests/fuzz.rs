@@ -43,7 +43,7 @@ use skewbook::{Error, ErrorKind};
 use std::panic::{catch_unwind, AssertUnwindSafe};
 
 /// Cases in a plain `cargo test`.
-const DEFAULT_CASES: usize = 2000;
+const DEFAULT_CASES: usize = 3000;
 /// Seed of a plain `cargo test`.
 const SEED: u64 = 0x5eed_b00c;
 /// Failures collected before the run stops.
