@@ -43,11 +43,7 @@
 //! A maturity whose tranches do not reach 100%, do not tile, or whose base
 //! chain broke has no gap.
 
-use crate::curve::Pool;
-use crate::error::Result;
-use crate::loss::PoolModel;
 use crate::solve::chain::{BaseOutcome, MaturityImplied};
-use crate::tranche::{Tranche, TrancheSchedule, TrancheValuer};
 use chrono::NaiveDate;
 
 /// Default tolerance on the gap: 1 bp of running spread.
@@ -81,59 +77,46 @@ impl IndexGap {
 /// ```text
 /// gap_bp = 10⁴ · (Σ_i W_i (c_i ann_i + u_i DF(ts)) - prot[0, 1]) / ann[0, 1]
 /// ```
-pub fn index_gap(pool: &Pool, m: &MaturityImplied) -> Option<IndexGap> {
-    index_gap_with(pool, m, PoolModel::LargePool)
-}
-
-/// [`index_gap`] for tranches solved in `model` (the large pool, or a pool
-/// of n names): their correlations are read in the model that gave them.
-pub fn index_gap_with(pool: &Pool, m: &MaturityImplied, model: PoolModel) -> Option<IndexGap> {
-    gap(pool, m, model).ok().flatten()
-}
-
-fn gap(pool: &Pool, m: &MaturityImplied, model: PoolModel) -> Result<Option<IndexGap>> {
+///
+/// The chain already valued each tranche at its base correlations and the
+/// whole pool on the maturity's schedule ([`MaturityImplied`] keeps both,
+/// in whichever pool model solved them), so this only adds them up.
+pub fn index_gap(m: &MaturityImplied) -> Option<IndexGap> {
     let reaches_top = m
         .tranches
         .last()
         .is_some_and(|t| t.quote.detach >= 1.0 - 1e-12);
     if !m.base_curve.tiles || !reaches_top {
-        return Ok(None);
+        return None;
     }
-    let schedule = TrancheSchedule::for_pool_with(pool, m.base_curve.maturity, model)?;
     let mut implied = 0.0;
     for t in &m.tranches {
-        let tranche = Tranche::new(t.quote.attach, t.quote.detach)?;
-        let v = TrancheValuer::new(&schedule, tranche, t.quote.quote)?;
-        let legs = match t.base {
-            BaseOutcome::Solved {
-                rho_attach,
-                rho_detach,
-            } => v.legs(rho_attach, rho_detach),
-            BaseOutcome::Top { rho_attach } => v.legs(rho_attach, rho_attach),
-            BaseOutcome::WholePool => v.legs_flat(0.5),
-            _ => return Ok(None),
-        };
-        implied +=
-            tranche.width() * (v.running() * legs.annuity + v.upfront() * schedule.df_settlement());
+        let priced = matches!(
+            t.base,
+            BaseOutcome::Solved { .. } | BaseOutcome::Top { .. } | BaseOutcome::WholePool
+        );
+        let premium = t.repriced.filter(|_| priced)?.premium;
+        implied += (t.quote.detach - t.quote.attach) * premium;
     }
-    let whole = schedule.base_legs(&schedule.base(1.0)?, 0.5);
+    let whole = m.whole_pool;
     if whole.annuity.is_nan() || whole.annuity <= 1e-14 {
-        return Ok(None);
+        return None;
     }
     let gap = implied - whole.protection;
-    Ok(Some(IndexGap {
+    Some(IndexGap {
         maturity: m.base_curve.maturity,
         protection_gap: gap,
         gap_bp: 1e4 * gap / whole.annuity,
-    }))
+    })
 }
 
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::curve::MarketOptions;
+    use crate::curve::{MarketOptions, Pool};
     use crate::input::snapshot::parse_snapshot;
     use crate::solve::chain::implied_date;
+    use crate::tranche::{Tranche, TrancheSchedule, TrancheValuer};
 
     fn gaps(rows: &str) -> Vec<Option<IndexGap>> {
         let text = format!(
@@ -144,7 +127,7 @@ mod tests {
         let md = &snap.dates[0];
         let pool = Pool::build(md, &MarketOptions::default(), "t.csv").expect("pool");
         let d = implied_date(md, pool).expect("implied");
-        d.maturities.iter().map(|m| index_gap(&d.pool, m)).collect()
+        d.maturities.iter().map(index_gap).collect()
     }
 
     /// The whole pool alone tiles 0-100%: its gap is its quote minus its
@@ -162,7 +145,7 @@ mod tests {
         let par = d.maturities[0].tranches[0]
             .whole_pool_quote
             .expect("a par spread");
-        let g = index_gap(&d.pool, &d.maturities[0]).expect("a gap");
+        let g = index_gap(&d.maturities[0]).expect("a gap");
         assert!((g.gap_bp - (70.0 - par)).abs() < 1e-9, "{} {par}", g.gap_bp);
         assert!(g.exceeds(1.0) && !g.exceeds(20.0));
     }
@@ -184,5 +167,50 @@ mod tests {
         let whole = "2026-06-18,tranche,2031-06-20,0,3,upfront_pct,40,500\n\
                      2026-06-18,tranche,2031-06-20,3,100,spread_bp,10,\n";
         assert!(gaps(whole)[0].is_some());
+    }
+
+    /// The gap from the chain's own valuations equals the gap from every
+    /// tranche valued afresh at its base correlations and the whole pool
+    /// valued on a schedule built again (the index check as first written).
+    #[test]
+    fn the_gap_from_the_chain_equals_a_fresh_valuation() {
+        let text = std::fs::read_to_string(concat!(
+            env!("CARGO_MANIFEST_DIR"),
+            "/market-samples/kcx-2026-06-18.csv"
+        ))
+        .expect("sample");
+        let snap = parse_snapshot(&text, "kcx.csv").expect("snapshot");
+        let md = &snap.dates[0];
+        let pool = Pool::build(md, &MarketOptions::default(), "kcx.csv").expect("pool");
+        let d = implied_date(md, pool).expect("implied");
+        let mut checked = 0;
+        for m in &d.maturities {
+            let Some(g) = index_gap(m) else { continue };
+            let schedule =
+                TrancheSchedule::for_pool(&d.pool, m.base_curve.maturity).expect("schedule");
+            let mut implied = 0.0;
+            for t in &m.tranches {
+                let tranche = Tranche::new(t.quote.attach, t.quote.detach).expect("bounds");
+                let v = TrancheValuer::new(&schedule, tranche, t.quote.quote).expect("valuer");
+                let legs = match t.base {
+                    BaseOutcome::Solved {
+                        rho_attach,
+                        rho_detach,
+                    } => v.legs(rho_attach, rho_detach),
+                    BaseOutcome::Top { rho_attach } => v.legs(rho_attach, rho_attach),
+                    _ => v.legs_flat(0.5),
+                };
+                implied += tranche.width()
+                    * (v.running() * legs.annuity + v.upfront() * schedule.df_settlement());
+            }
+            let whole = schedule.base_legs(&schedule.base(1.0).expect("base"), 0.5);
+            let gap_bp = 1e4 * (implied - whole.protection) / whole.annuity;
+            assert!((g.gap_bp - gap_bp).abs() < 1e-9, "{} {gap_bp}", g.gap_bp);
+            checked += 1;
+        }
+        assert!(
+            checked >= 3,
+            "the KCX sample tiles at every maturity: {checked}"
+        );
     }
 }

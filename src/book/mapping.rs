@@ -225,7 +225,7 @@ fn solve_scan(gap: impl Fn(f64) -> Result<f64>) -> Result<Option<Mapped>> {
     }
     let tol = Tolerance {
         residual: 0.0,
-        width: 1e-10,
+        width: 1e-14,
         max_iterations: 200,
     };
     // `gap` failed nowhere on the scan and takes the same kind of point

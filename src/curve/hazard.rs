@@ -13,7 +13,7 @@ use super::DiscountCurve;
 use crate::dates::Schedule;
 use crate::error::{significant, Error, ErrorKind, Problem, Result};
 use crate::market::{IndexQuote, Quote};
-use crate::math::root::{newton_bracketed_hermite, Tolerance};
+use crate::math::root::{newton_root_hermite, Tolerance};
 use chrono::NaiveDate;
 
 /// Piecewise-constant pool hazard rate in curve time (Act/365F).
@@ -281,7 +281,7 @@ pub fn bootstrap(
         };
         // Newton with the analytic slope, kept inside the bracket, started
         // from the cubic through the bracket's values and slopes.
-        let sol = newton_bracketed_hermite(gap_and_slope, (lo, hi), (glo, ghi), (slo, shi), tol)
+        let sol = newton_root_hermite(gap_and_slope, (lo, hi), (glo, ghi), (slo, shi), tol)
             .map_err(|e| fail(format!("the solver stopped: {e}")))?;
         let h = sol.value.max(0.0);
         knots.push(knot);

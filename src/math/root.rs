@@ -34,6 +34,13 @@ pub enum Termination {
     Residual,
     /// The bracket fell below the width tolerance.
     Bracket,
+    /// The last Newton step fell below the width tolerance; the root is
+    /// that step, not evaluated ([`newton_root_hermite`] only).
+    Step,
+    /// The root is Newton's last step, not evaluated: the two evaluations
+    /// before it converge quadratically and predict it within 1% of the
+    /// width tolerance ([`newton_root_hermite`] only).
+    Predicted,
 }
 
 /// A root and how it was found.
@@ -43,7 +50,8 @@ pub struct Solution {
     pub value: f64,
     /// Function evaluations spent.
     pub evaluations: usize,
-    /// f at the root.
+    /// f at the root (for a root not evaluated, [`Termination::Step`] or
+    /// [`Termination::Predicted`], the size Newton's error predicts).
     pub residual: f64,
     /// Why the solver stopped.
     pub termination: Termination,
@@ -124,7 +132,18 @@ pub fn newton_bracketed<F: FnMut(f64) -> (f64, f64)>(
     let (neg, pos) = if fa < 0.0 { (a, b) } else { (b, a) };
     let (flo, fhi) = (fa.min(fb), fa.max(fb));
     let x = neg + (pos - neg) * (-flo) / (fhi - flo);
-    newton_from(fdf, a, b, fa, x, tol)
+    newton_from(fdf, a, b, fa, x, tol, Finish::Evaluated)
+}
+
+/// Whether a Newton solve may end on a step it has not evaluated.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum Finish {
+    /// Every root returned has been evaluated (callers that need f's
+    /// by-products there).
+    Evaluated,
+    /// The last step may be returned unevaluated when quadratic
+    /// convergence puts it well inside the width tolerance.
+    Predicted,
 }
 
 /// [`newton_bracketed`] started from the root of the cubic Hermite
@@ -150,7 +169,38 @@ pub fn newton_bracketed_hermite<F: FnMut(f64) -> (f64, f64)>(
         return Err(Failure::NotBracketed);
     }
     let x = hermite_root(ends, values, slopes);
-    newton_from(fdf, a, b, fa, x, tol)
+    newton_from(fdf, a, b, fa, x, tol, Finish::Evaluated)
+}
+
+/// [`newton_bracketed_hermite`] for callers that need the root alone: the
+/// confirming evaluation is skipped when the last two evaluations predict
+/// Newton's next step to lie within 1% of the width tolerance of the root
+/// ([`Termination::Predicted`]).
+///
+/// # Formula
+/// With `x_k` the last evaluation, `x_(k-1)` the one before and
+/// `delta = f(x_k) / f'(x_k)`, Newton's error after the step is
+/// `|f'' / (2 f')| delta²`; the curvature comes from the two slopes:
+/// ```text
+/// f''(x_k) ≈ (f'(x_k) - f'(x_(k-1))) / (x_k - x_(k-1))
+/// return x_k - delta  when  |f'' / (2 f')| delta² < width / 100  and  |delta| < |x_k - x_(k-1)|
+/// ```
+///
+/// # Errors
+/// As [`newton_bracketed`].
+pub fn newton_root_hermite<F: FnMut(f64) -> (f64, f64)>(
+    fdf: F,
+    ends: (f64, f64),
+    values: (f64, f64),
+    slopes: (f64, f64),
+    tol: Tolerance,
+) -> Result<Solution, Failure> {
+    let ((a, b), (fa, fb)) = (ends, values);
+    if fa == 0.0 || fb == 0.0 || fa.signum() == fb.signum() {
+        return newton_bracketed_hermite(fdf, ends, values, slopes, tol);
+    }
+    let x = hermite_root(ends, values, slopes);
+    newton_from(fdf, a, b, fa, x, tol, Finish::Predicted)
 }
 
 /// A zero inside (a, b) of the cubic Hermite interpolant through
@@ -213,7 +263,9 @@ pub fn hermite_root(ends: (f64, f64), values: (f64, f64), slopes: (f64, f64)) ->
 }
 
 /// Newton kept inside the bracket [a, b] (f(a) = `fa`, f(b) of the other
-/// sign), from `x`.
+/// sign), from `x`. It stops on a small residual or a narrow bracket; with
+/// [`Finish::Predicted`] also on a Newton step below the width tolerance,
+/// or a last step predicted to land within 1% of it.
 fn newton_from<F: FnMut(f64) -> (f64, f64)>(
     mut fdf: F,
     mut a: f64,
@@ -221,11 +273,14 @@ fn newton_from<F: FnMut(f64) -> (f64, f64)>(
     fa: f64,
     mut x: f64,
     tol: Tolerance,
+    finish: Finish,
 ) -> Result<Solution, Failure> {
     // Orient so that f(a) < 0 < f(b).
     if fa > 0.0 {
         std::mem::swap(&mut a, &mut b);
     }
+    // The previous evaluation's point and slope.
+    let mut previous: Option<(f64, f64)> = None;
     for evaluations in 1..=tol.max_iterations {
         let (fx, dfx) = fdf(x);
         if fx.abs() < tol.residual {
@@ -251,11 +306,32 @@ fn newton_from<F: FnMut(f64) -> (f64, f64)>(
         }
         let step = x - fx / dfx;
         let (lo, hi) = (a.min(b), a.max(b));
-        x = if dfx != 0.0 && step.is_finite() && step > lo && step < hi {
-            step
-        } else {
-            0.5 * (a + b)
-        };
+        let newton = dfx != 0.0 && step.is_finite() && step > lo && step < hi;
+        if newton && finish == Finish::Predicted {
+            let delta = (x - step).abs();
+            // Newton's error after the step, |f'' / (2 f')| delta², with
+            // the curvature from the last two slopes.
+            let predicted = previous.map(|(xp, dp)| {
+                let curvature = ((dfx - dp) / (x - xp) / (2.0 * dfx)).abs();
+                (curvature * delta * delta, delta < (x - xp).abs())
+            });
+            let termination = match predicted {
+                _ if delta < tol.width => Some(Termination::Step),
+                Some((error, true)) if error < 0.01 * tol.width => Some(Termination::Predicted),
+                _ => None,
+            };
+            if let Some(termination) = termination {
+                let error = predicted.map_or(0.0, |(e, _)| e);
+                return Ok(Solution {
+                    value: step,
+                    evaluations,
+                    residual: error * dfx.abs(),
+                    termination,
+                });
+            }
+        }
+        previous = Some((x, dfx));
+        x = if newton { step } else { 0.5 * (a + b) };
     }
     Err(Failure::NoConvergence)
 }
@@ -338,6 +414,48 @@ mod tests {
         );
         assert_eq!(
             newton_bracketed(|x| (x * x + 1.0, 2.0 * x), 0.0, 2.0, 1.0, 5.0, TOL),
+            Err(Failure::NotBracketed)
+        );
+    }
+
+    /// Skipping the confirming evaluation: on exp(x) - 3 (root ln 3) from
+    /// a wide bracket, the predicted last step lands within the width
+    /// tolerance of the root, in fewer evaluations than a solve that
+    /// evaluates its root, and says it was predicted.
+    #[test]
+    fn a_predicted_last_step_is_the_root_in_fewer_evaluations() {
+        let fdf = |x: f64| (x.exp() - 3.0, x.exp());
+        let (ends, values, slopes) = ((0.0, 2.0), (-2.0, 2f64.exp() - 3.0), (1.0, 2f64.exp()));
+        let tol = Tolerance {
+            residual: 1e-14,
+            width: 1e-13,
+            max_iterations: 100,
+        };
+        let evaluated = newton_bracketed_hermite(fdf, ends, values, slopes, tol).unwrap();
+        let predicted = newton_root_hermite(fdf, ends, values, slopes, tol).unwrap();
+        let root = 3f64.ln();
+        assert!((evaluated.value - root).abs() < 1e-15);
+        assert!(
+            (predicted.value - root).abs() < 1e-15,
+            "{}",
+            predicted.value - root
+        );
+        assert!(predicted.evaluations < evaluated.evaluations);
+        assert!(matches!(
+            predicted.termination,
+            Termination::Step | Termination::Predicted
+        ));
+        // A width no Newton step gets below: the prediction ends it.
+        let fine = Tolerance {
+            width: 1e-17,
+            ..tol
+        };
+        let p = newton_root_hermite(fdf, ends, values, slopes, fine).unwrap();
+        assert_eq!(p.termination, Termination::Predicted);
+        assert!((p.value - root).abs() <= 4.5e-16, "{}", p.value - root);
+        // Unbracketed input is refused as by the evaluating solver.
+        assert_eq!(
+            newton_root_hermite(fdf, (2.0, 3.0), (1.0, 2.0), (1.0, 1.0), tol),
             Err(Failure::NotBracketed)
         );
     }

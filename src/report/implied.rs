@@ -81,7 +81,7 @@
 use super::curve::{quote_label, CurvePillar};
 use super::price::{bounds_label, model_field, model_title};
 use super::QuotedTranche;
-use crate::consistency::{index_gap_with, DEFAULT_TOLERANCE_BP};
+use crate::consistency::{index_gap, DEFAULT_TOLERANCE_BP};
 use crate::curve::{MarketOptions, Pool};
 use crate::error::collect_all;
 use crate::error::Result;
@@ -405,7 +405,7 @@ impl ImpliedDate {
         let mut tranches = Vec::new();
         let mut index_check = Vec::new();
         for m in &d.maturities {
-            let gap = index_gap_with(&d.pool, m, opts.model);
+            let gap = index_gap(m);
             let mismatch = gap.is_some_and(|g| g.exceeds(opts.index_tolerance_bp));
             if let Some(g) = gap {
                 index_check.push(IndexCheck {

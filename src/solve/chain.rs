@@ -12,7 +12,7 @@ use crate::error::Result;
 use crate::flags::Flag;
 use crate::loss::{Correlation, PoolModel};
 use crate::market::{tiles_from_zero, MarketDate, TrancheQuote};
-use crate::tranche::{BaseLegs, Tranche, TrancheSchedule, TrancheValuer};
+use crate::tranche::{BaseLegs, Tranche, TrancheLegs, TrancheSchedule, TrancheValuer};
 use chrono::NaiveDate;
 
 /// How close to a search limit ([`RHO_MIN`], [`RHO_MAX`]) a compound or
@@ -110,6 +110,10 @@ pub struct Repriced {
     pub error: Option<f64>,
     /// Expected tranche loss at the protection end, fraction of the width.
     pub expected_loss: f64,
+    /// What the quote's premiums are worth at the base correlations, per
+    /// unit tranche notional: running spread (or coupon) times the annuity,
+    /// plus the upfront discounted from settlement (the index check's term).
+    pub premium: f64,
 }
 
 /// Everything implied for one quoted tranche.
@@ -160,6 +164,9 @@ pub struct MaturityImplied {
     pub tranches: Vec<TrancheImplied>,
     /// The base-correlation curve.
     pub base_curve: BaseCurve,
+    /// The whole pool's legs, [0, 100%] on this maturity's schedule (no
+    /// correlation moves them), pool units.
+    pub whole_pool: BaseLegs,
 }
 
 /// One trade date's implied correlations and the pool they were solved on.
@@ -290,6 +297,7 @@ pub fn implied_maturity(
                     .model_quote(&legs)
                     .map(|q| q - t.quote.exact_in_file_unit()),
                 expected_loss: legs.expected_loss,
+                premium: premium(&v, &legs),
             }
         };
         let below = chain.map(|(detach, rho_a, legs)| {
@@ -366,7 +374,13 @@ pub fn implied_maturity(
     Ok(MaturityImplied {
         tranches: out,
         base_curve: curve,
+        whole_pool: schedule.base_legs(&schedule.base(1.0)?, 0.5),
     })
+}
+
+/// The quote's premiums on these legs, per unit tranche notional.
+fn premium(v: &TrancheValuer, legs: &TrancheLegs) -> f64 {
+    v.running() * legs.annuity + v.upfront() * v.schedule.df_settlement()
 }
 
 /// [0, 100%]: no correlation moves it; its one model quote and loss.
@@ -381,6 +395,7 @@ fn whole_pool(v: &TrancheValuer, t: &TrancheQuote) -> TrancheImplied {
         repriced: Some(Repriced {
             error: q.map(|q| q - t.quote.exact_in_file_unit()),
             expected_loss: legs.expected_loss,
+            premium: premium(v, &legs),
         }),
         flags: vec![Flag::NoCorrelationDependence],
     }

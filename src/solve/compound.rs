@@ -18,7 +18,7 @@
 //!    sign towards zero hides an extremum: it is located (Brent on the
 //!    derivative) and, if the value there crosses zero, both roots are polished.
 
-use crate::math::root::{brent, newton_bracketed_hermite, Solution, Tolerance};
+use crate::math::root::{brent, newton_root_hermite, Solution, Tolerance};
 use crate::tranche::{TrancheLegs, TrancheValuer};
 
 /// Lower end of the correlation search.
@@ -136,7 +136,7 @@ pub fn compound_roots_from_scan(v: &TrancheValuer, scan: &[TrancheLegs]) -> Comp
     };
     let mut failures = 0;
     let mut polish = |a: &Sample, b: &Sample| {
-        let s = newton_bracketed_hermite(
+        let s = newton_root_hermite(
             fdf,
             (a.rho, b.rho),
             (a.value, b.value),
