@@ -7,7 +7,7 @@
 //! depends only on the hazard up to its own protection end, so once a pillar
 //! is solved, later pillars cannot disturb it: every quote reprices exactly.
 
-use super::legs::{index_legs, index_legs_of_periods, IndexLegs, LastPieceLegs};
+use super::legs::{index_legs_of_periods, IndexLegs, LastPieceLegs};
 use super::piecewise::PiecewiseConstant;
 use super::DiscountCurve;
 use crate::dates::Schedule;
@@ -287,7 +287,8 @@ pub fn bootstrap(
         knots.push(knot);
         hazards.push(h);
         let curve = HazardCurve::from_knots(&knots, &hazards);
-        let legs = index_legs(&schedule, discount, curve.rate(), recovery);
+        // The periods before the knot as priced once, the rest at h.
+        let legs = legs_at(h);
         pillars.push(Pillar {
             maturity: q.maturity,
             quote: q.quote,

@@ -42,7 +42,10 @@ fn exp_moments_series(lambda: f64, dt: f64) -> (f64, f64) {
     let x = lambda * dt;
     let (mut term, mut s1, mut s2) = (1.0, 0.0, 0.0);
     for n in 0..24 {
-        let (t1, t2) = (s1 + term / (n + 1) as f64, s2 + term / (n + 2) as f64);
+        let (t1, t2) = (
+            s1 + term * RECIPROCALS[n + 1],
+            s2 + term * RECIPROCALS[n + 2],
+        );
         // |x| < 0.5: each term is under half the one before, so once a
         // term leaves both sums unchanged, every later one does too (the
         // sums are the 24-term sums to the bit).
@@ -50,10 +53,21 @@ fn exp_moments_series(lambda: f64, dt: f64) -> (f64, f64) {
             break;
         }
         (s1, s2) = (t1, t2);
-        term *= -x / (n + 1) as f64;
+        term *= -x * RECIPROCALS[n + 1];
     }
     (dt * s1, dt * dt * s2)
 }
+
+/// 1 / n for n = 0..=26 (0 unused): the series' divisions as products.
+const RECIPROCALS: [f64; 27] = {
+    let mut r = [0.0; 27];
+    let mut n = 1;
+    while n < 27 {
+        r[n] = 1.0 / n as f64;
+        n += 1;
+    }
+    r
+};
 
 fn exp_moments_closed(lambda: f64, dt: f64) -> (f64, f64) {
     let x = lambda * dt;
@@ -71,12 +85,12 @@ fn exp_moment3(lambda: f64, dt: f64) -> f64 {
     if x.abs() < 0.5 {
         let (mut term, mut s3) = (1.0, 0.0);
         for n in 0..24 {
-            let t3 = s3 + term / (n + 3) as f64;
+            let t3 = s3 + term * RECIPROCALS[n + 3];
             if t3 == s3 {
                 break;
             }
             s3 = t3;
-            term *= -x / (n + 1) as f64;
+            term *= -x * RECIPROCALS[n + 1];
         }
         dt * dt * dt * s3
     } else {
