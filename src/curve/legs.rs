@@ -381,46 +381,10 @@ impl LastPieceLegs {
         )
     }
 
-    /// The legs with hazard `h` from `s0` on.
+    /// The legs with hazard `h` from `s0` on (the values of
+    /// [`Self::legs_and_slope`]; the bootstrap asks for them rarely).
     pub(crate) fn legs(&self, h: f64) -> IndexLegs {
-        // The hazard integral at t >= s0, as PiecewiseConstant::integral
-        // forms it on the segment starting at s0.
-        let integral = |t: f64| self.integral_s0 + h * (t - self.s0);
-        let (mut default_pv, mut annuity) = (0.0, 0.0);
-        for p in &self.periods {
-            let mut accrued = 0.0;
-            for piece in &p.pieces {
-                match *piece {
-                    Piece::Fixed(None) => {}
-                    Piece::Fixed(Some((pv, acc))) => {
-                        default_pv += pv;
-                        accrued += acc;
-                    }
-                    Piece::Solved {
-                        a,
-                        dt,
-                        since_start,
-                        fwd,
-                        fwd_integral,
-                    } => {
-                        if h == 0.0 {
-                            continue;
-                        }
-                        let lambda = h + fwd;
-                        let ds = (-(integral(a) + fwd_integral)).exp();
-                        let (e1, e2) = exp_moments(lambda, dt);
-                        default_pv += h * ds * e1;
-                        accrued += h * ds * (since_start * e1 + e2);
-                    }
-                }
-            }
-            let survival_end = (-integral(p.t_end)).exp();
-            annuity += p.accrual_df * survival_end + accrued * 365.0 / 360.0;
-        }
-        IndexLegs {
-            protection: (1.0 - self.recovery) * default_pv,
-            annuity,
-        }
+        self.legs_and_slope(h).0
     }
 }
 

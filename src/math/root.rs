@@ -161,15 +161,7 @@ pub fn newton_bracketed_hermite<F: FnMut(f64) -> (f64, f64)>(
     slopes: (f64, f64),
     tol: Tolerance,
 ) -> Result<Solution, Failure> {
-    let ((a, b), (fa, fb)) = (ends, values);
-    if fa == 0.0 || fb == 0.0 {
-        return newton_bracketed(fdf, a, b, fa, fb, tol);
-    }
-    if fa.signum() == fb.signum() {
-        return Err(Failure::NotBracketed);
-    }
-    let x = hermite_root(ends, values, slopes);
-    newton_from(fdf, a, b, fa, x, tol, Finish::Evaluated)
+    newton_hermite(fdf, ends, values, slopes, tol, Finish::Evaluated)
 }
 
 /// [`newton_bracketed_hermite`] for callers that need the root alone: the
@@ -195,12 +187,27 @@ pub fn newton_root_hermite<F: FnMut(f64) -> (f64, f64)>(
     slopes: (f64, f64),
     tol: Tolerance,
 ) -> Result<Solution, Failure> {
+    newton_hermite(fdf, ends, values, slopes, tol, Finish::Predicted)
+}
+
+/// The Hermite-started bracketed Newton of both public forms.
+fn newton_hermite<F: FnMut(f64) -> (f64, f64)>(
+    fdf: F,
+    ends: (f64, f64),
+    values: (f64, f64),
+    slopes: (f64, f64),
+    tol: Tolerance,
+    finish: Finish,
+) -> Result<Solution, Failure> {
     let ((a, b), (fa, fb)) = (ends, values);
-    if fa == 0.0 || fb == 0.0 || fa.signum() == fb.signum() {
-        return newton_bracketed_hermite(fdf, ends, values, slopes, tol);
+    if fa == 0.0 || fb == 0.0 {
+        return newton_bracketed(fdf, a, b, fa, fb, tol);
+    }
+    if fa.signum() == fb.signum() {
+        return Err(Failure::NotBracketed);
     }
     let x = hermite_root(ends, values, slopes);
-    newton_from(fdf, a, b, fa, x, tol, Finish::Predicted)
+    newton_from(fdf, a, b, fa, x, tol, finish)
 }
 
 /// A zero inside (a, b) of the cubic Hermite interpolant through

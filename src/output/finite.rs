@@ -281,50 +281,59 @@ impl<'a> ser::Serializer for &'a mut Walker {
     }
 }
 
-impl ser::SerializeSeq for Compound<'_> {
-    type Ok = ();
-    type Error = WalkError;
-    fn serialize_element<T: Serialize + ?Sized>(&mut self, value: &T) -> Result<(), WalkError> {
-        self.element(value)
-    }
-    fn end(self) -> Result<(), WalkError> {
-        Ok(())
-    }
+/// The compound serializers whose items are unnamed elements: each walks
+/// into its element; a variant's pops the variant's name at the end.
+macro_rules! element_compound {
+    ($trait:ident, $method:ident, $end:expr) => {
+        impl ser::$trait for Compound<'_> {
+            type Ok = ();
+            type Error = WalkError;
+            fn $method<T: Serialize + ?Sized>(&mut self, value: &T) -> Result<(), WalkError> {
+                self.element(value)
+            }
+            fn end(self) -> Result<(), WalkError> {
+                $end(self);
+                Ok(())
+            }
+        }
+    };
 }
 
-impl ser::SerializeTuple for Compound<'_> {
-    type Ok = ();
-    type Error = WalkError;
-    fn serialize_element<T: Serialize + ?Sized>(&mut self, value: &T) -> Result<(), WalkError> {
-        self.element(value)
-    }
-    fn end(self) -> Result<(), WalkError> {
-        Ok(())
-    }
+/// The compound serializers whose items are named fields.
+macro_rules! field_compound {
+    ($trait:ident, $end:expr) => {
+        impl ser::$trait for Compound<'_> {
+            type Ok = ();
+            type Error = WalkError;
+            fn serialize_field<T: Serialize + ?Sized>(
+                &mut self,
+                name: &'static str,
+                value: &T,
+            ) -> Result<(), WalkError> {
+                self.walker.within(Step::Field(name), value)
+            }
+            fn end(self) -> Result<(), WalkError> {
+                $end(self);
+                Ok(())
+            }
+        }
+    };
 }
 
-impl ser::SerializeTupleStruct for Compound<'_> {
-    type Ok = ();
-    type Error = WalkError;
-    fn serialize_field<T: Serialize + ?Sized>(&mut self, value: &T) -> Result<(), WalkError> {
-        self.element(value)
-    }
-    fn end(self) -> Result<(), WalkError> {
-        Ok(())
-    }
+/// Nothing to undo at the end of a sequence, tuple, map or struct.
+fn stay(_: Compound<'_>) {}
+
+/// The end of a variant: leave the variant's name.
+fn leave_variant(c: Compound<'_>) {
+    c.walker.path.pop();
 }
 
-impl ser::SerializeTupleVariant for Compound<'_> {
-    type Ok = ();
-    type Error = WalkError;
-    fn serialize_field<T: Serialize + ?Sized>(&mut self, value: &T) -> Result<(), WalkError> {
-        self.element(value)
-    }
-    fn end(self) -> Result<(), WalkError> {
-        self.walker.path.pop();
-        Ok(())
-    }
-}
+element_compound!(SerializeSeq, serialize_element, stay);
+element_compound!(SerializeTuple, serialize_element, stay);
+element_compound!(SerializeTupleStruct, serialize_field, stay);
+element_compound!(SerializeTupleVariant, serialize_field, leave_variant);
+field_compound!(SerializeStruct, stay);
+field_compound!(SerializeStructVariant, leave_variant);
 
 impl ser::SerializeMap for Compound<'_> {
     type Ok = ();
@@ -343,37 +352,6 @@ impl ser::SerializeMap for Compound<'_> {
         self.walker.within(Step::Key(key), value)
     }
     fn end(self) -> Result<(), WalkError> {
-        Ok(())
-    }
-}
-
-impl ser::SerializeStruct for Compound<'_> {
-    type Ok = ();
-    type Error = WalkError;
-    fn serialize_field<T: Serialize + ?Sized>(
-        &mut self,
-        name: &'static str,
-        value: &T,
-    ) -> Result<(), WalkError> {
-        self.walker.within(Step::Field(name), value)
-    }
-    fn end(self) -> Result<(), WalkError> {
-        Ok(())
-    }
-}
-
-impl ser::SerializeStructVariant for Compound<'_> {
-    type Ok = ();
-    type Error = WalkError;
-    fn serialize_field<T: Serialize + ?Sized>(
-        &mut self,
-        name: &'static str,
-        value: &T,
-    ) -> Result<(), WalkError> {
-        self.walker.within(Step::Field(name), value)
-    }
-    fn end(self) -> Result<(), WalkError> {
-        self.walker.path.pop();
         Ok(())
     }
 }
