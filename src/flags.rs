@@ -177,7 +177,7 @@ impl Flag {
                 "the maturity's tranches tile 0-100% but the protection their quotes imply differs from the index curve's by more than the tolerance (in bp of running spread): check the tranche quotes against the index quote"
             }
             Flag::ExtrapolatedDetachment => {
-                "a bound lies outside the quoted detachments of a maturity used: its correlation is held flat"
+                "a bound lies outside the quoted detachments of a maturity used: its correlation is extrapolated (held flat under linear and pchip, read off the interpolated base expected loss under expected-loss)"
             }
             Flag::ExtrapolatedMaturity => {
                 "the maturity lies outside the quoted maturities: the nearest maturity's skew is used"
