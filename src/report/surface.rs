@@ -56,7 +56,7 @@ use crate::market::Snapshot;
 use crate::math::interp::Interp;
 use crate::output::{csv_num, fixed, fixed_or, pct, sci, wrap, Report, Table};
 use crate::solve::chain::implied_date_with;
-use crate::surface::diagnostics::{diagnose_with, MaturityDiagnostics};
+use crate::surface::diagnostics::{self, diagnose_with, MaturityDiagnostics};
 use crate::surface::expected_loss::{BaseLossCurve, Inadmissible};
 use crate::surface::reprice::{reprice_quotes, QuoteRepricing};
 use crate::surface::Surface;
@@ -495,6 +495,15 @@ pub fn build_with(
     Ok(SurfaceReport { dates })
 }
 
+/// A grid point's two checks, as the diagnostics count them: its
+/// tranchelet loss `e` outside [0, 1], and the exceedance curve rising
+/// from it to the `next`.
+fn checks(e: Option<f64>, next: Option<f64>) -> (bool, bool) {
+    let bad_unit = e.is_some_and(diagnostics::outside_unit);
+    let rising = matches!((e, next), (Some(a), Some(b)) if diagnostics::rises(a, b));
+    (bad_unit, rising)
+}
+
 /// The table's notes for the `expected-loss` fields of a maturity.
 fn expected_loss_notes(m: &SurfaceMaturity, notes: &mut Vec<String>) {
     let Some(inadmissible) = &m.inadmissible else {
@@ -589,11 +598,8 @@ impl Report for SurfaceReport {
                     .collect();
                 for (j, g) in m.grid.iter().enumerate() {
                     let e = g.tranchelet_loss;
-                    let bad_unit = e.is_some_and(|e| !(-1e-12..=1.0 + 1e-12).contains(&e));
-                    let rising = match (e, m.grid.get(j + 1).and_then(|n| n.tranchelet_loss)) {
-                        (Some(a), Some(b)) => b - a > 1e-12,
-                        _ => false,
-                    };
+                    let next = m.grid.get(j + 1).and_then(|n| n.tranchelet_loss);
+                    let (bad_unit, rising) = checks(e, next);
                     let mut check = Vec::new();
                     if bad_unit {
                         check.push("outside [0,1]");
@@ -685,8 +691,8 @@ impl Report for SurfaceReport {
                         csv_num(g.base_correlation),
                         csv_num(Some(g.base_expected_loss)),
                         csv_num(e),
-                        flag(e.is_some_and(|e| !(-1e-12..=1.0 + 1e-12).contains(&e))),
-                        flag(matches!((e, next), (Some(a), Some(b)) if b - a > 1e-12)),
+                        flag(checks(e, next).0),
+                        flag(checks(e, next).1),
                     ];
                     if with_model {
                         row.push(d.model.clone().unwrap_or_default());

@@ -24,6 +24,29 @@ use chrono::NaiveDate;
 /// Tolerance of every no-arbitrage check.
 pub const ARBITRAGE_TOLERANCE: f64 = 1e-12;
 
+/// Whether a tranchelet loss `e` (fraction of its width) lies outside
+/// [0, 1] by more than [`ARBITRAGE_TOLERANCE`].
+///
+/// ```
+/// use skewbook::surface::diagnostics::outside_unit;
+/// assert!(outside_unit(-1e-9) && outside_unit(1.0 + 1e-9));
+/// assert!(!outside_unit(-1e-13) && !outside_unit(0.4));
+/// ```
+pub fn outside_unit(e: f64) -> bool {
+    (-e).max(e - 1.0) > ARBITRAGE_TOLERANCE
+}
+
+/// Whether the exceedance curve rises from one tranchelet loss `e` to the
+/// next, `next`, by more than [`ARBITRAGE_TOLERANCE`].
+///
+/// ```
+/// use skewbook::surface::diagnostics::rises;
+/// assert!(rises(0.2, 0.2 + 1e-9) && !rises(0.2, 0.1));
+/// ```
+pub fn rises(e: f64, next: f64) -> bool {
+    next - e > ARBITRAGE_TOLERANCE
+}
+
 /// One grid point of a maturity.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct GridPoint {
@@ -199,7 +222,7 @@ pub fn diagnose_with(
         let e: Vec<f64> = grid.iter().filter_map(|p| p.tranchelet_loss).collect();
         for (j, &ej) in e.iter().enumerate() {
             let beyond = (-ej).max(ej - 1.0);
-            if beyond > ARBITRAGE_TOLERANCE {
+            if outside_unit(ej) {
                 counts.outside_unit += 1;
                 if worst_outside_unit
                     .is_none_or(|w| beyond > (-w.tranchelet_loss).max(w.tranchelet_loss - 1.0))
@@ -213,7 +236,7 @@ pub fn diagnose_with(
             }
             if let Some(&next) = e.get(j + 1) {
                 let rise = next - ej;
-                if rise > ARBITRAGE_TOLERANCE {
+                if rises(ej, next) {
                     counts.increasing += 1;
                     if worst_increasing.is_none_or(|w| rise > w.rise) {
                         worst_increasing = Some(Increasing {
