@@ -252,20 +252,37 @@ fn unreachable_equity_upfront_is_flagged_not_clamped() {
     assert!(table.contains("no compound correlation") && table.contains("no base correlation"));
 }
 
-/// Every table line of `implied`, `curve` and `price` fits an 80-column terminal.
+/// Every table line of `implied`, `curve` and `price` fits an 80-column
+/// terminal; so does `value` on the bundled book, mapped, bucketed and in
+/// a pool of names.
 #[test]
 fn tables_fit_80_columns() {
-    for file in snapshots() {
-        for cmd in [
-            vec!["implied", file.as_str()],
-            vec!["curve", file.as_str()],
-            vec!["price", file.as_str(), "--correlation", "25"],
-        ] {
-            let (_, out, _) = skewbook(&cmd);
-            for line in out.lines() {
-                assert!(line.chars().count() <= 80, "{cmd:?}: {line}");
-            }
+    let fits = |cmd: &[&str]| {
+        let (_, out, _) = skewbook(cmd);
+        assert!(out.lines().count() > 3, "{cmd:?}: {out}");
+        for line in out.lines() {
+            assert!(line.chars().count() <= 80, "{cmd:?}: {line}");
         }
+    };
+    for file in snapshots() {
+        fits(&["implied", file.as_str()]);
+        fits(&["curve", file.as_str()]);
+        fits(&["price", file.as_str(), "--correlation", "25"]);
+    }
+    let dir = concat!(env!("CARGO_MANIFEST_DIR"), "/market-samples");
+    let (trades, skew, pools) = (
+        format!("{dir}/kcx-trades.csv"),
+        format!("{dir}/kcx-2026-06-18.csv"),
+        format!("{dir}/kcx-pools.csv"),
+    );
+    let book = ["value", &trades, "--skew", &skew, "--pools", &pools];
+    for extra in [
+        &["--mapping", "tlp"][..],
+        &["--mapping", "probability", "--buckets"],
+        &["--mapping", "probability", "--interp", "expected-loss"],
+        &["--pool-model", "names", "--names", "100"],
+    ] {
+        fits(&[&book[..], extra].concat());
     }
 }
 

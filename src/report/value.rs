@@ -429,33 +429,32 @@ fn repair_notes(surface: &crate::surface::Surface) -> Vec<String> {
 
 impl Report for ValueReport {
     fn sections(&self) -> Vec<Table> {
-        let mut prices = Table::new(&[
-            "trade",
-            "pool",
-            "maturity",
-            "side",
-            "tranche",
-            "rho A%",
-            "rho D%",
-            "spread bp",
-            "upfront%",
-            "EL%",
-            "pv",
-            "flags",
-        ])
-        .with_title(format!(
-            "{}  book valued off the skew ({}, mapping {}, recovery {}%){}",
+        let title = format!(
+            "{}  book off the {} skew, {} mapping, recovery {}%",
             self.date,
             self.interp,
             self.mapping,
             fixed(self.recovery * 100.0, 1),
-            super::price::model_title(&self.model)
-        ));
+        );
+        let mut terms = Table::new(&[
+            "trade", "pool", "maturity", "side", "tranche%", "rho A%", "rho D%",
+        ])
+        .with_title(title);
+        terms.notes.push(
+            "tranche%: attachment-detachment; A>B: bound A of the pool maps to B on the index"
+                .to_string(),
+        );
+        let mut prices = Table::new(&["trade", "spread bp", "upfront%", "EL%", "pv", "flags"])
+            .with_title(format!(
+                "{}  values (pv in currency, holder's sign){}",
+                self.date,
+                super::price::model_title(&self.model)
+            ));
         let mut risk = Table::new(&[
             "trade", "spread01", "corr01", "recov01", "jump2def", "index01", "delta",
         ])
         .with_title(format!(
-            "{}  risk per trade (currency, holder's sign; jump to default: 1 of {} names)",
+            "{}  risk per trade (currency, holder's sign; jump2def: 1 of {} names)",
             self.date, self.names
         ));
         let money = |x: Option<f64>| fixed_or(x, 2, "-");
@@ -464,7 +463,7 @@ impl Report for ValueReport {
                 Some(ki) if (ki - k).abs() > 1e-9 => format!("{k}>{}", fixed(ki, 2)),
                 _ => format!("{k}"),
             };
-            prices.push(vec![
+            terms.push(vec![
                 t.trade_id.clone(),
                 t.pool.clone(),
                 t.maturity.clone(),
@@ -476,6 +475,9 @@ impl Report for ValueReport {
                 ),
                 fixed_or(t.base_correlation_attach.map(|r| r * 100.0), 2, "-"),
                 fixed_or(t.base_correlation_detach.map(|r| r * 100.0), 2, "-"),
+            ]);
+            prices.push(vec![
+                t.trade_id.clone(),
                 fixed_or(t.par_spread_bp, 2, "-"),
                 fixed_or(t.upfront_pct, 3, "-"),
                 fixed_or(t.expected_loss.map(|e| e * 100.0), 2, "-"),
@@ -524,7 +526,7 @@ impl Report for ValueReport {
         if let Some(n) = self.bucket_note {
             risk.notes.extend(wrap(n, 79, 0));
         }
-        let mut out = vec![prices, risk];
+        let mut out = vec![terms, prices, risk];
         if self.trades.iter().any(|t| t.buckets.is_some()) {
             let mut b = Table::new(&["trade", "bucket", "figure", "value"])
                 .with_title(format!("{}  bucketed risk (currency)", self.date));
