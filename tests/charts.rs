@@ -57,6 +57,7 @@ fn inputs<'a>(
         at,
         step: 0.005,
         history_interp: Interp::Linear,
+        model: skewbook::loss::PoolModel::LargePool,
     }
 }
 

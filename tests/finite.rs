@@ -74,10 +74,12 @@ fn mpmath_fixture() {
     }
 }
 
-/// The rule (14 Gauss-Legendre points a panel) against the same panels
-/// with 28 points, on a grid of pool sizes, PDs, correlations and
+/// The default rules (the tabulated trapezoid sums from rho = 0.01, the
+/// direct Gauss-Legendre panels below) against the direct rule with 28
+/// points a panel, on a grid of pool sizes, PDs, correlations and
 /// detachments: within 1e-11 in value, 1e-9 + 1e-6 relative in the
-/// rho-derivative.
+/// rho-derivative. (The name is from when the default rule was the direct
+/// one with 14 points a panel.)
 #[test]
 fn fourteen_points_a_panel_agree_with_twenty_eight() {
     let mut worst: (f64, String) = (0.0, String::new());
@@ -113,9 +115,10 @@ fn fourteen_points_a_panel_agree_with_twenty_eight() {
     assert!(worst.0 < 1e-11, "worst {:e} at {}", worst.0, worst.1);
 }
 
-/// The tabulated `F(v) = f(N(v))` (cubic Hermite) against the binomial
-/// sums evaluated afresh at every node ([`FinitePool::expected_min_direct`]),
-/// on the same grid: within 2e-12 in value, 1e-8 relative in the derivative.
+/// The tabulated rule (trapezoid sums over a table of `f(N(v)) - cap N(v)`)
+/// against the binomial sums evaluated afresh at every node of the direct
+/// rule ([`FinitePool::expected_min_direct`]), on the same grid: within
+/// 2e-12 in value, 1e-9 + 1e-6 relative in the derivative.
 #[test]
 fn tabulated_against_direct_binomial_sums() {
     let mut worst: (f64, String) = (0.0, String::new());
@@ -143,6 +146,40 @@ fn tabulated_against_direct_binomial_sums() {
         }
     }
     assert!(worst.0 < 2e-12, "worst {:e} at {}", worst.0, worst.1);
+}
+
+/// The tabulated rule beyond that grid, against the direct rule with 28
+/// points a panel: pools of 3, 40 and 1,000 names, PD from 1e-9 to
+/// 1 - 1e-6, correlations just above the tabulated rule's threshold (0.01)
+/// and at 0.999999, detachments a hundredth of a name's loss and just
+/// below the pool's: within 1e-12 in value, 1e-9 + 1e-6 relative in the
+/// derivative.
+#[test]
+fn tabulated_rule_at_the_edges_of_its_domain() {
+    for n in [3, 40, 1000] {
+        let pool = FinitePool::new(n).expect("pool");
+        let direct = FinitePool::with_nodes(n, 28).expect("pool");
+        for pd in [1e-9, 1e-6, 0.99, 0.999999] {
+            let h = Horizon::new(pd).expect("pd");
+            for rho in [0.0101, 0.05, 0.99, 0.999999] {
+                let corr = Correlation::new(rho);
+                for k in [0.006 / n as f64, 0.2, 0.5999] {
+                    let base = BaseTranche::new(0.4, k).expect("base");
+                    let (a, b) = (
+                        base.finite(&h, &corr, &pool),
+                        base.finite(&h, &corr, &direct),
+                    );
+                    let what = format!("n {n} PD {pd} rho {rho} K {k}: {a:?} {b:?}");
+                    assert!((a.loss - b.loss).abs() < 1e-12, "{what}");
+                    assert!((a.outstanding - b.outstanding).abs() < 1e-12, "{what}");
+                    assert!(
+                        (a.dloss_drho - b.dloss_drho).abs() < 1e-9 + 1e-6 * b.dloss_drho.abs(),
+                        "{what}"
+                    );
+                }
+            }
+        }
+    }
 }
 
 /// One name: it defaults with probability PD whatever rho, so `[0, K]`

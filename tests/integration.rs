@@ -36,6 +36,10 @@ mod interp;
 /// index check, history warnings, capped errors, delimiters and headers,
 /// the summary of a long run, date filters.
 mod mistakes;
+/// `--names N` on skew-history, chart and report: the finite pool's numbers
+/// (against `implied` and `surface --names` on random dates, and the
+/// library repricing in that pool), the pool named in every output.
+mod names_commands;
 /// Sample outputs against the fixtures recorded before a refactoring.
 mod outputs;
 /// Dates in parallel: the same bytes on one thread and on four, progress

@@ -20,7 +20,11 @@
 //! ```
 //! The risk-neutral curve is the same one-factor large-pool model with the
 //! index curve's PD to M + 1 day and a correlation that varies with K, so
-//! the two curves differ only by the PD and the correlation.
+//! the two curves differ only by the PD and the correlation. With a pool
+//! of n names (`--names`) the risk-neutral curve is that pool's (knots
+//! solved and g computed in it, [`crate::surface::diagnostics::diagnose_with`])
+//! while the real-world curve stays Vasicek's large pool, and the chart
+//! says so.
 //!
 //! # The band
 //! At each K the band runs from the lowest to the highest P(L > K) over
@@ -35,13 +39,15 @@ use super::frame::{render, tick, Frame, Item, LegendEntry, Sample};
 use super::style::{series_style, Marker};
 use crate::dates::Schedule;
 use crate::error::Result;
+use crate::loss::PoolModel;
 use crate::math::interp::Interp;
 use crate::math::normal::inv_cdf;
 use crate::realworld::estimators::{Estimate, Method};
 use crate::realworld::vasicek::Vasicek;
 use crate::solve::chain::DateImplied;
+use crate::surface::diagnostics::diagnose_with;
 use crate::surface::diagnostics::ARBITRAGE_TOLERANCE;
-use crate::surface::{diagnose, MaturityDiagnostics, Surface};
+use crate::surface::{MaturityDiagnostics, Surface};
 use chrono::NaiveDate;
 
 /// The estimators in the order one is chosen for the chart when none is
@@ -166,6 +172,8 @@ pub struct ExceedanceChart {
     pub real_world: Option<RealWorldExceedance>,
     /// Right end of the loss axis (fraction).
     pub k_max: f64,
+    /// The pool of the risk-neutral curves.
+    pub model: PoolModel,
 }
 
 /// An annual PD compounded over `t` years: 1 - (1 - p)^t.
@@ -238,24 +246,30 @@ fn real_world_curve(
 }
 
 /// The diagnostics of `d`'s surface for each of `interps` on a grid of `n`
-/// intervals (see [`crate::surface::diagnostics::grid_intervals`]).
+/// intervals (see [`crate::surface::diagnostics::grid_intervals`]), base
+/// expected loss in `model` (the pool `d` was solved in).
 ///
 /// # Errors
-/// As [`Surface::from_implied`] and [`diagnose`].
+/// As [`Surface::from_implied`] and [`diagnose_with`].
 pub fn diagnostics_by_interp(
     d: &DateImplied,
     interps: &[Interp],
     n: usize,
+    model: PoolModel,
 ) -> Result<Vec<(Interp, Vec<MaturityDiagnostics>)>> {
     interps
         .iter()
-        .map(|&i| Ok((i, diagnose(&Surface::from_implied(d, i)?, &d.pool, n)?)))
+        .map(|&i| {
+            let surface = Surface::from_implied(d, i)?;
+            Ok((i, diagnose_with(&surface, &d.pool, n, model)?))
+        })
         .collect()
 }
 
 /// The exceedance chart of every maturity of `d` with knots: the implied
 /// curve of each interpolation from its diagnostics (see
-/// [`diagnostics_by_interp`]), and the real-world curve when `real` is given.
+/// [`diagnostics_by_interp`], in `model`), and the real-world curve when
+/// `real` is given.
 ///
 /// # Errors
 /// A real-world estimate outside (0, 1).
@@ -263,6 +277,7 @@ pub fn exceedance_charts(
     d: &DateImplied,
     per_interp: &[(Interp, Vec<MaturityDiagnostics>)],
     real: Option<&RealWorld>,
+    model: PoolModel,
 ) -> Result<Vec<ExceedanceChart>> {
     let Some((_, first)) = per_interp.first() else {
         return Ok(Vec::new());
@@ -320,6 +335,7 @@ pub fn exceedance_charts(
             implied,
             real_world,
             k_max,
+            model,
         });
     }
     Ok(out)
@@ -333,7 +349,11 @@ impl ExceedanceChart {
 
     /// The chart's title.
     pub fn title(&self) -> String {
-        format!("Loss exceedance P(L > K) to {}", self.maturity)
+        format!(
+            "Loss exceedance P(L > K) to {}{}",
+            self.maturity,
+            super::model_suffix(self.model)
+        )
     }
 
     /// The chart as an SVG document: probability on a logarithmic axis
@@ -418,6 +438,11 @@ impl ExceedanceChart {
                 tick(r.horizon, 2),
                 tick(r.pd_horizon * 100.0, 2)
             ));
+            if let PoolModel::Names(n) = self.model {
+                subtitle.push(format!(
+                    "risk-neutral in a pool of {n} names; real-world in the large pool"
+                ));
+            }
         }
         if !below_zero.is_empty() {
             items.push(Item::Markers {

@@ -13,6 +13,7 @@
 use super::frame::{padded_range, plain_y, render, tick, Frame, Item, LegendEntry, Sample};
 use super::style::series_style;
 use crate::error::Result;
+use crate::loss::PoolModel;
 use crate::math::interp::Interp;
 use crate::solve::chain::DateImplied;
 use crate::surface::Surface;
@@ -65,6 +66,8 @@ pub struct HistoryChart {
     pub interp: Interp,
     /// Quoted detachments first, then the chosen ones, each increasing.
     pub series: Vec<HistorySeries>,
+    /// The pool every date was solved in.
+    pub model: PoolModel,
 }
 
 /// Detachment as a map key: 1e-9 of the pool (so 0.07 read as 7% is one key).
@@ -79,6 +82,7 @@ type Values = BTreeMap<NaiveDate, (Option<f64>, bool)>;
 pub struct HistoryCollector {
     at: Vec<f64>,
     interp: Interp,
+    model: PoolModel,
     dates: Vec<NaiveDate>,
     quoted: BTreeMap<NaiveDate, BTreeMap<i64, Values>>,
     chosen: BTreeMap<NaiveDate, BTreeMap<i64, Values>>,
@@ -86,11 +90,13 @@ pub struct HistoryCollector {
 
 impl HistoryCollector {
     /// A collector reading the skew at the detachments `at` (fractions in
-    /// (0, 1)) with the interpolation `interp`, besides every quoted one.
-    pub fn new(at: &[f64], interp: Interp) -> Self {
+    /// (0, 1)) with the interpolation `interp`, besides every quoted one,
+    /// of dates solved in `model`.
+    pub fn new(at: &[f64], interp: Interp, model: PoolModel) -> Self {
         HistoryCollector {
             at: at.to_vec(),
             interp,
+            model,
             dates: Vec::new(),
             quoted: BTreeMap::new(),
             chosen: BTreeMap::new(),
@@ -169,6 +175,7 @@ impl HistoryCollector {
                 maturity: *maturity,
                 interp: self.interp,
                 series,
+                model: self.model,
             });
         }
         out
@@ -183,7 +190,11 @@ impl HistoryChart {
 
     /// The chart's title.
     pub fn title(&self) -> String {
-        format!("Base correlation through time, maturity {}", self.maturity)
+        format!(
+            "Base correlation through time, maturity {}{}",
+            self.maturity,
+            super::model_suffix(self.model)
+        )
     }
 
     /// The dates of the history.

@@ -31,10 +31,11 @@ use crate::curve::{MarketOptions, Pool};
 use crate::error::{Error, ErrorKind, Result};
 use crate::flags::Flag;
 use crate::input::history::History;
+use crate::loss::PoolModel;
 use crate::market::Snapshot;
 use crate::math::interp::Interp;
 use crate::realworld::estimators::{estimate_all, Estimate, Method, Options};
-use crate::solve::chain::{implied_date, DateImplied};
+use crate::solve::chain::{implied_date_with, DateImplied};
 use crate::surface::diagnostics::grid_intervals;
 use crate::surface::MaturityDiagnostics;
 use chrono::NaiveDate;
@@ -48,6 +49,25 @@ pub use frame::{LEGEND_ROW, PLOT_HEIGHT, WIDTH};
 /// The interpolations the skew and exceedance charts draw, in order (each
 /// takes the next line style). A new interpolation is one more entry here.
 pub const SKEW_INTERPOLATIONS: &[Interp] = &[Interp::Linear, Interp::Pchip, Interp::ExpectedLoss];
+
+/// The interpolations drawn in `model`: [`SKEW_INTERPOLATIONS`] in the
+/// large pool; in a pool of n names all but `expected-loss`, which reads
+/// correlations back through the large pool.
+pub fn skew_interpolations(model: PoolModel) -> Vec<Interp> {
+    SKEW_INTERPOLATIONS
+        .iter()
+        .copied()
+        .filter(|&i| model == PoolModel::LargePool || i != Interp::ExpectedLoss)
+        .collect()
+}
+
+/// `, pool of 125 names` for a chart title; nothing for the large pool.
+fn model_suffix(model: PoolModel) -> String {
+    match model {
+        PoolModel::LargePool => String::new(),
+        PoolModel::Names(_) => format!(", pool of {}", model.describe()),
+    }
+}
 
 /// Escapes text for XML and HTML, in element content and in quoted
 /// attribute values alike: `&`, `<`, `>`, `"` and `'`.
@@ -92,6 +112,9 @@ pub struct Inputs<'a> {
     pub step: f64,
     /// Interpolation for the detachments off the surface through time.
     pub history_interp: Interp,
+    /// The pool every date is solved and every tranche priced in: the
+    /// large pool, or a pool of n names.
+    pub model: PoolModel,
 }
 
 /// A chart ready to write: a plain file name, its title, its SVG.
@@ -135,6 +158,8 @@ pub struct Charts {
     pub history_flags: Vec<(Flag, usize)>,
     /// Whether some quote of the history has no solution.
     pub history_unsolved: bool,
+    /// The pool everything was solved and priced in.
+    pub model: PoolModel,
 }
 
 /// The snapshot's date to draw: `date`, or the last.
@@ -154,15 +179,25 @@ fn pick_date(snapshot: &Snapshot, date: Option<NaiveDate>) -> Result<&crate::mar
 }
 
 impl Charts {
-    /// Computes every chart's data.
+    /// Computes every chart's data, in the pool of `inputs.model`: the
+    /// date and every history date solved there
+    /// ([`implied_date_with`]), the quote curves priced there, the surface
+    /// checks and exceedance curves with its base expected loss, and the
+    /// skew drawn by [`skew_interpolations`] of it. The real-world curve is
+    /// Vasicek's large pool whatever the model.
     ///
     /// # Errors
     /// [`ErrorKind::Usage`] for a date not in the snapshot, a grid step that
-    /// does not divide 100%, a detachment of `at` outside (0, 1), or a named
-    /// estimator the default history gives no PD, rho and intervals;
-    /// curve errors of any date.
+    /// does not divide 100%, a detachment of `at` outside (0, 1), a named
+    /// estimator the default history gives no PD, rho and intervals, or
+    /// `expected-loss` for the history in a pool of n names; curve errors
+    /// of any date; [`ErrorKind::InvalidInput`] for a pool of 0 names.
     pub fn build(inputs: &Inputs) -> Result<Charts> {
         let n = grid_intervals(inputs.step)?;
+        let model = inputs.model;
+        if inputs.history.is_some() {
+            crate::surface::check_interp_in_model(inputs.history_interp, model)?;
+        }
         if let Some(k) = inputs.at.iter().find(|k| !(**k > 0.0 && **k < 1.0)) {
             return Err(Error::msg(
                 ErrorKind::Usage,
@@ -174,7 +209,7 @@ impl Charts {
         }
         let md = pick_date(inputs.snapshot, inputs.date)?;
         let pool = Pool::build(md, inputs.options, &inputs.snapshot.path)?;
-        let implied = implied_date(md, pool)?;
+        let implied = implied_date_with(md, pool, model)?;
         let estimates = inputs
             .defaults
             .map(|h| estimate_all(h, &Options::default()))
@@ -195,17 +230,18 @@ impl Charts {
             }
             None => None,
         };
-        let diagnostics = diagnostics_by_interp(&implied, SKEW_INTERPOLATIONS, n)?;
-        let skews = skew_charts(&implied, SKEW_INTERPOLATIONS)?;
-        let quotes = quote_curves(&implied)?;
-        let exceedance = exceedance_charts(&implied, &diagnostics, real_world.as_ref())?;
+        let interps = skew_interpolations(model);
+        let diagnostics = diagnostics_by_interp(&implied, &interps, n, model)?;
+        let skews = skew_charts(&implied, &interps, model)?;
+        let quotes = quote_curves(&implied, model)?;
+        let exceedance = exceedance_charts(&implied, &diagnostics, real_world.as_ref(), model)?;
         let mut history = Vec::new();
         let mut counts: std::collections::BTreeMap<Flag, usize> = Default::default();
         let mut history_unsolved = false;
         if let Some(h) = inputs.history {
-            let mut collector = HistoryCollector::new(inputs.at, inputs.history_interp);
+            let mut collector = HistoryCollector::new(inputs.at, inputs.history_interp, model);
             for (md, pool) in crate::curve::pool::pools_for_all_dates(h, inputs.options)? {
-                let d = implied_date(&md, pool)?;
+                let d = implied_date_with(&md, pool, model)?;
                 for t in d.tranches() {
                     history_unsolved |= t.unsolved();
                     for f in &t.flags {
@@ -230,6 +266,7 @@ impl Charts {
             history,
             history_flags: counts.into_iter().collect(),
             history_unsolved,
+            model,
         })
     }
 

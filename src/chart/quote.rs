@@ -15,6 +15,7 @@ use super::frame::{padded_range, plain_y, render, tick, Frame, Item, LegendEntry
 use super::style::{series_style, Dash, Marker, SeriesStyle};
 use crate::error::Result;
 use crate::flags::Flag;
+use crate::loss::PoolModel;
 use crate::solve::chain::DateImplied;
 use crate::solve::compound::{RHO_MAX, RHO_MIN};
 use crate::tranche::{Tranche, TrancheSchedule, TrancheValuer};
@@ -50,6 +51,8 @@ pub struct QuoteCurve {
     pub range: Option<(f64, f64)>,
     /// The tranche's flags.
     pub flags: Vec<Flag>,
+    /// The pool the tranche is priced in.
+    pub model: PoolModel,
 }
 
 /// The flat correlations drawn, with `roots` merged in.
@@ -65,18 +68,19 @@ fn correlations(roots: &[f64]) -> Vec<f64> {
 }
 
 /// The curve of every tranche of `d` that depends on correlation (all but
-/// the whole pool, [0, 100%]), by maturity then attachment.
+/// the whole pool, [0, 100%]), by maturity then attachment, priced in
+/// `model` (the pool `d` was solved in).
 ///
 /// # Errors
-/// As [`TrancheSchedule::for_pool`] and [`Tranche::new`]; not expected for
-/// tranches `implied` has solved.
-pub fn quote_curves(d: &DateImplied) -> Result<Vec<QuoteCurve>> {
+/// As [`TrancheSchedule::for_pool_with`] and [`Tranche::new`]; not
+/// expected for tranches `implied` has solved.
+pub fn quote_curves(d: &DateImplied, model: PoolModel) -> Result<Vec<QuoteCurve>> {
     let mut out = Vec::new();
     for m in &d.maturities {
         let Some(first) = m.tranches.first() else {
             continue;
         };
-        let schedule = TrancheSchedule::for_pool(&d.pool, first.quote.maturity)?;
+        let schedule = TrancheSchedule::for_pool_with(&d.pool, first.quote.maturity, model)?;
         for t in &m.tranches {
             let Some(compound) = &t.compound else {
                 continue;
@@ -100,6 +104,7 @@ pub fn quote_curves(d: &DateImplied) -> Result<Vec<QuoteCurve>> {
                 roots,
                 range: compound.attainable,
                 flags: t.flags.clone(),
+                model,
             });
         }
     }
@@ -138,9 +143,10 @@ impl QuoteCurve {
     /// The chart's title.
     pub fn title(&self) -> String {
         format!(
-            "Tranche {} maturing {}: model quote against flat correlation",
+            "Tranche {} maturing {}: model quote against flat correlation{}",
             self.label(),
-            self.maturity
+            self.maturity,
+            super::model_suffix(self.model)
         )
     }
 

@@ -10,6 +10,7 @@
 use super::frame::{padded_range, plain_y, render, tick, Frame, Item, LegendEntry, Sample};
 use super::style::{series_style, Marker};
 use crate::error::Result;
+use crate::loss::PoolModel;
 use crate::math::interp::Interp;
 use crate::solve::chain::{DateImplied, Knot};
 use crate::surface::Surface;
@@ -44,6 +45,8 @@ pub struct SkewChart {
     /// Right end of the detachment axis (fraction): a quarter beyond the
     /// last knot, rounded up to 5%, at most 100%.
     pub k_max: f64,
+    /// The pool the knots were solved in.
+    pub model: PoolModel,
 }
 
 /// Right end of the detachment axis for knots ending at `last`.
@@ -65,12 +68,16 @@ fn grid(k_max: f64, knots: &[Knot]) -> Vec<f64> {
     ks
 }
 
-/// The skew chart of every maturity of `d` with at least one knot, with a
-/// curve for each of `interps`.
+/// The skew chart of every maturity of `d` (solved in `model`) with at
+/// least one knot, with a curve for each of `interps`.
 ///
 /// # Errors
 /// As [`Surface::from_implied`] (not expected from solved knots).
-pub fn skew_charts(d: &DateImplied, interps: &[Interp]) -> Result<Vec<SkewChart>> {
+pub fn skew_charts(
+    d: &DateImplied,
+    interps: &[Interp],
+    model: PoolModel,
+) -> Result<Vec<SkewChart>> {
     let surfaces = interps
         .iter()
         .map(|&i| Surface::from_implied(d, i))
@@ -100,6 +107,7 @@ pub fn skew_charts(d: &DateImplied, interps: &[Interp]) -> Result<Vec<SkewChart>
             curves,
             broken_at: c.broken.as_ref().map(|b| b.at),
             k_max,
+            model,
         });
     }
     Ok(out)
@@ -113,7 +121,11 @@ impl SkewChart {
 
     /// The chart's title.
     pub fn title(&self) -> String {
-        format!("Base correlation skew, maturity {}", self.maturity)
+        format!(
+            "Base correlation skew, maturity {}{}",
+            self.maturity,
+            super::model_suffix(self.model)
+        )
     }
 
     /// The chart as an SVG document.

@@ -11,19 +11,29 @@
 //!     "detach_pct": 7.0,        the detachment (base, surface) or the tranche's
 //!     "root": 1,                compound root number (1 or 2), else null
 //!     "value": 0.28,            correlation, fraction; null when there is none
-//!     "change": -0.004 } ]      value minus the previous date's value of the same
+//!     "change": -0.004,         value minus the previous date's value of the same
 //!                               series; null on the first date or when either is null
+//!     "model": "names_125" } ]  only with --names: the pool of n names every
+//!                               correlation was solved in (absent for the large pool)
 //! ```
 //! CSV is wide: one row per date, one column per series (and one `chg`
-//! column beside each), ready for a spreadsheet.
+//! column beside each), ready for a spreadsheet; with `--names` a `model`
+//! column follows the date. The table's titles name the pool of n names.
+//!
+//! With `--names N` every date is solved in a pool of N names
+//! ([`crate::solve::chain::implied_date_with`]), and `--at` reads that
+//! date's skew of finite-pool knots; `--interp expected-loss` is refused
+//! there (it reads correlations back through the large pool).
 
 use super::pools_for_all_dates;
+use super::price::{model_field, model_title};
 use crate::curve::MarketOptions;
 use crate::error::Result;
+use crate::loss::PoolModel;
 use crate::market::Snapshot;
 use crate::math::interp::Interp;
 use crate::output::{csv_num, fixed_or, pct, Report, Table};
-use crate::solve::chain::implied_date;
+use crate::solve::chain::implied_date_with;
 use crate::surface::Surface;
 use serde::Serialize;
 use std::collections::HashMap;
@@ -63,6 +73,9 @@ pub struct Observation {
     pub value: Option<f64>,
     /// Change since the previous date, fraction.
     pub change: Option<f64>,
+    /// `names_N` for a pool of N names; absent for the large pool.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub model: Option<String>,
 }
 
 impl Observation {
@@ -112,10 +125,27 @@ pub fn build(
     at: &[f64],
     interp: Interp,
 ) -> Result<SkewHistory> {
+    build_with(snapshot, opts, at, interp, PoolModel::LargePool)
+}
+
+/// [`build`] with every date solved in `model`: the large pool, or a pool
+/// of n names.
+///
+/// # Errors
+/// As [`build`]; [`crate::ErrorKind::Usage`] for `expected-loss` in a pool
+/// of n names.
+pub fn build_with(
+    snapshot: &Snapshot,
+    opts: &MarketOptions,
+    at: &[f64],
+    interp: Interp,
+    model: PoolModel,
+) -> Result<SkewHistory> {
+    crate::surface::check_interp_in_model(interp, model)?;
     let mut observations = Vec::new();
     let mut last: HashMap<Key, Option<f64>> = HashMap::new();
     for (md, pool) in pools_for_all_dates(snapshot, opts)? {
-        let implied = implied_date(&md, pool)?;
+        let implied = implied_date_with(&md, pool, model)?;
         let surface = Surface::from_implied(&implied, interp)?;
         let date = md.date.to_string();
         let mut today = Vec::new();
@@ -133,6 +163,7 @@ pub fn build(
                 root,
                 value,
                 change: None,
+                model: model_field(model),
             };
             for t in m.tranches.iter().filter(|t| t.quote.detach < 1.0 - 1e-12) {
                 today.push(obs(
@@ -202,6 +233,11 @@ impl SkewHistory {
         m
     }
 
+    /// The pool model's name when it is not the large pool.
+    fn model(&self) -> Option<String> {
+        self.observations.first().and_then(|o| o.model.clone())
+    }
+
     /// Dates in order.
     fn dates(&self) -> Vec<&str> {
         let mut d: Vec<&str> = Vec::new();
@@ -242,7 +278,8 @@ impl Report for SkewHistory {
                 }
             }));
             let mut t = Table::new(&headers).with_title(format!(
-                "base correlation (%) of tranches maturing {m}; @K: off the surface"
+                "base correlation (%) of tranches maturing {m}; @K: off the surface{}",
+                model_title(&self.model())
             ));
             for date in self.dates() {
                 let mut row = vec![date.to_string()];
@@ -262,7 +299,11 @@ impl Report for SkewHistory {
 
     fn csv(&self) -> Table {
         let cols = self.columns();
+        let model = self.model();
         let mut headers = vec!["date".to_string()];
+        if model.is_some() {
+            headers.push("model".to_string());
+        }
         for (name, _) in &cols {
             headers.push(name.clone());
             headers.push(format!("chg {name}"));
@@ -271,6 +312,9 @@ impl Report for SkewHistory {
         let by_date = self.by_date();
         for date in self.dates() {
             let mut row = vec![date.to_string()];
+            if let Some(m) = &model {
+                row.push(m.clone());
+            }
             for (_, key) in &cols {
                 let o = by_date.get(date).and_then(|d| d.get(key));
                 row.push(csv_num(o.and_then(|o| o.value)));

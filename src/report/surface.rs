@@ -412,7 +412,7 @@ pub fn surface_of_date_with(
     interp: Interp,
     model: PoolModel,
 ) -> Result<(Surface, crate::curve::Pool)> {
-    check_model(interp, model)?;
+    crate::surface::check_interp_in_model(interp, model)?;
     let implied = implied_date_with(md, pool, model)?;
     let surface = Surface::from_implied(&implied, interp)?;
     Ok((surface, implied.pool))
@@ -433,19 +433,6 @@ pub fn build(
     build_with(snapshot, opts, interp, step, only, PoolModel::LargePool)
 }
 
-/// `expected-loss` converts between correlation and expected loss in the
-/// large pool: refused in a pool of n names.
-fn check_model(interp: Interp, model: PoolModel) -> Result<()> {
-    if interp == Interp::ExpectedLoss && model != PoolModel::LargePool {
-        return Err(crate::Error::msg(
-            crate::ErrorKind::Usage,
-            "--interp expected-loss reads correlations back through the large pool: \
-             use linear or pchip with --names",
-        ));
-    }
-    Ok(())
-}
-
 /// [`build`] in a pool model: knots and base expected loss in the large
 /// pool, or in a pool of n names.
 ///
@@ -460,7 +447,7 @@ pub fn build_with(
     only: Option<NaiveDate>,
     model: PoolModel,
 ) -> Result<SurfaceReport> {
-    check_model(interp, model)?;
+    crate::surface::check_interp_in_model(interp, model)?;
     let n = crate::surface::diagnostics::grid_intervals(step)?;
     let snapshot = super::select_date(snapshot, only)?;
     let mut dates = Vec::new();

@@ -19,3 +19,33 @@ pub mod skew;
 
 pub use diagnostics::{diagnose, MaturityDiagnostics};
 pub use skew::{Lookup, MaturitySkew, Surface};
+
+use crate::error::{Error, ErrorKind, Result};
+use crate::loss::PoolModel;
+use crate::math::interp::Interp;
+
+/// Whether `interp` can run on knots solved in `model`: `expected-loss`
+/// converts between correlation and base expected loss in the large pool,
+/// so in a pool of n names it is refused.
+///
+/// # Errors
+/// [`ErrorKind::Usage`] for `expected-loss` in a pool of n names.
+///
+/// # Example
+/// ```
+/// use skewbook::loss::PoolModel;
+/// use skewbook::math::interp::Interp;
+/// use skewbook::surface::check_interp_in_model;
+/// assert!(check_interp_in_model(Interp::Pchip, PoolModel::Names(125)).is_ok());
+/// assert!(check_interp_in_model(Interp::ExpectedLoss, PoolModel::Names(125)).is_err());
+/// ```
+pub fn check_interp_in_model(interp: Interp, model: PoolModel) -> Result<()> {
+    if interp == Interp::ExpectedLoss && model != PoolModel::LargePool {
+        return Err(Error::msg(
+            ErrorKind::Usage,
+            "--interp expected-loss reads correlations back through the large pool: \
+             use linear or pchip with --names",
+        ));
+    }
+    Ok(())
+}

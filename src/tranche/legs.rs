@@ -212,7 +212,9 @@ impl TrancheSchedule {
             return BaseLegs::default();
         }
         match &self.finite {
-            Some(pool) => self.sum_legs(|h| base.finite(h, corr, pool)),
+            // every date at once: one table lookup and one set of Gaussian
+            // factors for the correlation
+            Some(pool) => self.sum_path(base.finite_path(&self.horizons, corr, pool).into_iter()),
             None => self.sum_legs(|h| base.closed_form(h, corr)),
         }
     }
@@ -225,28 +227,31 @@ impl TrancheSchedule {
             return (BaseLegs::default(), vec![0.0; self.horizons.len()]);
         }
         let corr = Correlation::new(rho);
-        let path = std::cell::RefCell::new(Vec::with_capacity(self.horizons.len()));
-        let legs = self.sum_legs(|h| {
-            let e = match &self.finite {
-                Some(pool) => base.finite(h, &corr, pool),
-                None => base.closed_form(h, &corr),
-            };
-            path.borrow_mut().push(e.loss);
-            e
-        });
-        (legs, path.into_inner())
+        let path: Vec<BaseExpectation> = match &self.finite {
+            Some(pool) => base.finite_path(&self.horizons, &corr, pool),
+            None => self
+                .horizons
+                .iter()
+                .map(|h| base.closed_form(h, &corr))
+                .collect(),
+        };
+        let losses = path.iter().map(|e| e.loss).collect();
+        (self.sum_path(path.into_iter()), losses)
     }
 
     /// Sums the legs over the schedule from the base expectation at each date.
     fn sum_legs(&self, at: impl Fn(&Horizon) -> BaseExpectation) -> BaseLegs {
+        self.sum_path(self.horizons.iter().map(at))
+    }
+
+    /// Sums the legs from the base expectations at step-in and at every
+    /// period end, in order.
+    fn sum_path(&self, mut path: impl Iterator<Item = BaseExpectation>) -> BaseLegs {
         let mut legs = BaseLegs::default();
-        let mut prev = at(&self.horizons[0]);
-        for ((h, &df), &w) in self.horizons[1..]
-            .iter()
-            .zip(&self.df_pay)
-            .zip(&self.half_accrual_df)
-        {
-            let cur = at(h);
+        let Some(mut prev) = path.next() else {
+            return legs;
+        };
+        for ((cur, &df), &w) in path.zip(&self.df_pay).zip(&self.half_accrual_df) {
             legs.protection += df * (cur.loss - prev.loss);
             legs.d_protection += df * (cur.dloss_drho - prev.dloss_drho);
             legs.annuity += w * (prev.outstanding + cur.outstanding);

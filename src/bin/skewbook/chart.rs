@@ -45,6 +45,7 @@ pub fn charts(args: &PictureArgs) -> Result<Charts, Failure> {
         )));
     }
     let options = args.curve.options()?;
+    let model = args.pool.model()?;
     let mut at = Vec::with_capacity(args.at.len());
     for &x in &args.at {
         let k = AT.read(x)?;
@@ -75,6 +76,7 @@ pub fn charts(args: &PictureArgs) -> Result<Charts, Failure> {
         at: &at,
         step,
         history_interp: args.interp.into(),
+        model,
     })?)
 }
 

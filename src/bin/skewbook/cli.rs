@@ -63,6 +63,8 @@ pub struct SkewHistoryArgs {
     /// Interpolation of base correlation across detachment for `--at`.
     #[arg(long, value_enum, default_value_t)]
     pub interp: InterpArg,
+    #[command(flatten)]
+    pub pool: PoolArgs,
 }
 
 /// Interpolation of base correlation across detachment.
@@ -528,6 +530,8 @@ pub struct PictureArgs {
     /// `--recovery` and `--rate` for the snapshot and the history.
     #[command(flatten)]
     pub curve: CurveChoiceArgs,
+    #[command(flatten)]
+    pub pool: PoolArgs,
 }
 
 /// `skewbook chart`.

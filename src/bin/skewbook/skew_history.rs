@@ -19,8 +19,15 @@ pub fn run(args: SkewHistoryArgs, out: &mut dyn Write) -> Result<Outcome, Failur
         .iter()
         .map(|&k| crate::units::to_fraction(k))
         .collect();
+    let model = args.pool.model()?;
     let (snapshot, opts) = crate::curve::load(&args.market)?;
-    let report = skewbook::report::skew_history::build(&snapshot, &opts, &at, args.interp.into())?;
+    let report = skewbook::report::skew_history::build_with(
+        &snapshot,
+        &opts,
+        &at,
+        args.interp.into(),
+        model,
+    )?;
     write_report(out, &report, args.market.format.into())?;
     Ok(Outcome::Clean)
 }

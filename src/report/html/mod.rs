@@ -8,6 +8,12 @@
 //! that occur, in plain words ([`Flag::meaning`]); the model's
 //! assumptions; and the caution ([`crate::CAUTION`]).
 //!
+//! # The pool model
+//! With `--names N` ([`Charts::model`]) everything on the page is solved
+//! and priced in a pool of N names: the line under the title, the
+//! implied section, every chart's title and the assumptions say so; the
+//! real-world curves stay Vasicek's large pool.
+//!
 //! # Self-contained
 //! Charts are inline SVG, style is one inline `<style>` element; there is no
 //! script, no image file, no font file and no URL (the inline SVG leaves
@@ -37,11 +43,12 @@
 mod writer;
 
 use super::curve::CurvePillar;
-use super::implied::{ImpliedDate, ImpliedTranche};
+use super::implied::{ImpliedDate, ImpliedOptions, ImpliedTranche};
 use super::surface::SurfaceMaturity;
 use crate::chart::Charts;
 use crate::error::Result;
 use crate::flags::Flag;
+use crate::loss::PoolModel;
 use crate::output::{fixed, sci};
 use std::collections::BTreeMap;
 use writer::Html;
@@ -601,17 +608,33 @@ fn history_section(h: &mut Html, charts: &Charts, svgs: &BTreeMap<String, String
 /// Up to this many dates, the history's table lists every date.
 pub const FULL_HISTORY_TABLE: usize = 60;
 
+/// The page's sentence on the pool model.
+fn pool_sentence(model: PoolModel) -> String {
+    match model {
+        PoolModel::LargePool => "Large homogeneous pool: the pool is taken as infinitely many names of equal size, each with the index curve's default probability and the same recovery; given the common factor, the pool's loss is certain.".to_string(),
+        PoolModel::Names(n) => format!("A homogeneous pool of {n} names (--names {n}): each name of equal size, with the index curve's default probability and the same recovery; given the common factor the number of defaults is binomial (Hull and White 2004). The large pool is the quoting convention: correlations in a pool of {n} names differ from the quoted ones."),
+    }
+}
+
 fn assumptions(h: &mut Html, charts: &Charts) {
     let recovery = pct(charts.implied.pool.recovery, 2);
+    let interpolation = match charts.model {
+        PoolModel::LargePool => "Across detachment the skew is interpolated linearly or by a monotone cubic (pchip), flat outside the knots, or through the base expected loss (expected-loss: a rising concave curve of E[min(L, K)] through the knots, whose correlation continues outside them); across maturity linearly in time. An interpolated skew need not be free of arbitrage: the surface checks say where it is not.".to_string(),
+        PoolModel::Names(n) => format!("Across detachment the skew is interpolated linearly or by a monotone cubic (pchip), flat outside the knots; across maturity linearly in time. The expected-loss interpolation reads correlations back through the large pool and is not drawn in a pool of {n} names. An interpolated skew need not be free of arbitrage: the surface checks say where it is not."),
+    };
+    let real_world_pool = match charts.model {
+        PoolModel::LargePool => String::new(),
+        PoolModel::Names(n) => format!(" The real-world curve stays the large pool's, while the risk-neutral one is the pool of {n} names'."),
+    };
     let items = [
-        "Large homogeneous pool: the pool is taken as infinitely many names of equal size, each with the index curve's default probability and the same recovery; given the common factor, the pool's loss is certain.".to_string(),
+        pool_sentence(charts.model),
         "Gaussian one-factor copula: a name defaults when a normal variable, made of one common factor and its own part, falls below a threshold set by its default probability; correlation is the common factor's share of that variable's variance.".to_string(),
         format!("Recovery is constant at {recovery}% for every name, whatever the state of the economy."),
         "The index hazard curve is piecewise constant, bootstrapped so that every index quote reprices; discounting is by the snapshot's zero rates, or a flat rate.".to_string(),
         "Compound correlation: one flat correlation on both bases of a tranche; a mezzanine tranche can have none or two. Base correlation: bootstrapped from the equity tranche up, per maturity; [0, 100%] has none.".to_string(),
-        "Across detachment the skew is interpolated linearly or by a monotone cubic (pchip), flat outside the knots, or through the base expected loss (expected-loss: a rising concave curve of E[min(L, K)] through the knots, whose correlation continues outside them); across maturity linearly in time. An interpolated skew need not be free of arbitrage: the surface checks say where it is not.".to_string(),
+        interpolation,
         format!("The exceedance curve is the tranchelet expected loss on a {}% grid, drawn at each tranchelet's middle; it approximates the probability that the pool loss to the protection end exceeds K.", short(crate::output::pct(charts.step))),
-        "Real world: the Vasicek large-pool loss at the estimated annual PD compounded over the maturity's horizon, 1 - (1 - PD)^T, the estimated asset correlation, and loss given default one minus the index recovery. The grey band runs, at each K, from the lowest to the highest probability with PD and correlation each anywhere in its own 95% interval; it is not a joint confidence region. Short histories bias correlation estimates low, and the intervals are asymptotic.".to_string(),
+        format!("Real world: the Vasicek large-pool loss at the estimated annual PD compounded over the maturity's horizon, 1 - (1 - PD)^T, the estimated asset correlation, and loss given default one minus the index recovery. The grey band runs, at each K, from the lowest to the highest probability with PD and correlation each anywhere in its own 95% interval; it is not a joint confidence region. Short histories bias correlation estimates low, and the intervals are asymptotic.{real_world_pool}"),
         "Dates: step-in the day after the trade date, upfronts settle three business days later, coupons on the 20th of March, June, September and December and at maturity, accrual Act/360; business days are weekdays, with no holiday calendar.".to_string(),
     ];
     h.open("section", &[("id", "assumptions")]);
@@ -635,7 +658,18 @@ pub fn page(charts: &Charts) -> Result<String> {
         .map(|s| (s.file_name, s.svg))
         .collect();
     let svg_of = |name: String| svgs.get(&name).map(String::as_str);
-    let d = ImpliedDate::from_implied(&charts.implied);
+    // the index check in the pool the date was solved in
+    let d = ImpliedDate::with_options(
+        &charts.implied,
+        &ImpliedOptions {
+            model: charts.model,
+            ..ImpliedOptions::default()
+        },
+    );
+    let in_pool = match charts.model {
+        PoolModel::LargePool => String::new(),
+        PoolModel::Names(n) => format!(" in a pool of {n} names"),
+    };
     let mut h = Html::new();
     h.open("html", &[("lang", "en")]);
     h.open("head", &[]);
@@ -660,11 +694,17 @@ pub fn page(charts: &Charts) -> Result<String> {
         &[],
         &format!("Correlation skew report, trade date {}", d.date),
     );
+    let pool = match charts.model {
+        PoolModel::LargePool => String::new(),
+        PoolModel::Names(n) => {
+            format!("; pool of {n} names (binomial defaults given the factor, not the large pool)")
+        }
+    };
     h.el(
         "p",
         &[("class", "meta")],
         &format!(
-            "Snapshot {}; recovery {}%; skewbook {}.",
+            "Snapshot {}; recovery {}%{pool}; skewbook {}.",
             charts.source,
             pct(d.recovery, 2),
             env!("CARGO_PKG_VERSION")
@@ -705,7 +745,7 @@ pub fn page(charts: &Charts) -> Result<String> {
     h.el(
         "p",
         &[],
-        "Compound correlation: every flat correlation at which the model reprices the tranche's quote. Base correlation: the correlation of the base tranche [0, detachment], bootstrapped from the bottom. The charts mark the solved base correlations (knots) and draw the skew between them by each interpolation.",
+        &format!("Compound correlation: every flat correlation at which the model reprices the tranche's quote{in_pool}. Base correlation: the correlation of the base tranche [0, detachment]{in_pool}, bootstrapped from the bottom. The charts mark the solved base correlations (knots) and draw the skew between them by each interpolation."),
     );
     let mut i = 0;
     while i < d.tranches.len() {
@@ -747,7 +787,7 @@ pub fn page(charts: &Charts) -> Result<String> {
     h.el(
         "p",
         &[],
-        "Each tranche priced at one flat correlation from 0.01% to 99.99%, against its market quote (the dashed line). Where the curve crosses the line is a compound correlation (circled): a curve that never reaches the line has none, and a mezzanine curve that rises and falls can cross it twice.",
+        &format!("Each tranche priced{in_pool} at one flat correlation from 0.01% to 99.99%, against its market quote (the dashed line). Where the curve crosses the line is a compound correlation (circled): a curve that never reaches the line has none, and a mezzanine curve that rises and falls can cross it twice."),
     );
     let quote_svgs: Vec<&str> = charts
         .quotes
@@ -821,10 +861,14 @@ pub fn page(charts: &Charts) -> Result<String> {
     h.open("section", &[("id", "caution")]);
     h.el("h2", &[], "Caution");
     h.el("p", &[], crate::CAUTION);
+    let pool_words = match charts.model {
+        PoolModel::LargePool => "the large homogeneous pool".to_string(),
+        PoolModel::Names(n) => format!("a homogeneous pool of {n} names"),
+    };
     h.el(
         "p",
         &[],
-        "The assumptions above are the large homogeneous pool, the Gaussian one-factor copula, constant recovery and the conventions stated; the real-world side adds the Vasicek model of default rates and whatever the default history leaves out.",
+        &format!("The assumptions above are {pool_words}, the Gaussian one-factor copula, constant recovery and the conventions stated; the real-world side adds the Vasicek model of default rates and whatever the default history leaves out."),
     );
     h.close("section");
     h.close("body");
