@@ -13,10 +13,15 @@ use std::io::Write;
 /// warnings of those dates to standard error.
 pub fn load(m: &MarketArgs) -> Result<(Snapshot, MarketOptions), Failure> {
     let opts = m.curve.options()?;
+    Ok((load_snapshot(m)?, opts))
+}
+
+/// The snapshot part of [`load`], once the market options are read.
+pub fn load_snapshot(m: &MarketArgs) -> Result<Snapshot, Failure> {
     let snapshot = read_snapshot(&m.file)?;
     let snapshot = skewbook::report::filter_dates(&snapshot, &m.dates.filter())?;
     crate::print_problems("warning", &snapshot.warnings);
-    Ok((snapshot, opts))
+    Ok(snapshot)
 }
 
 /// Runs the command.
