@@ -1,6 +1,7 @@
-//! `implied` on a history read date by date (two passes, a chunk of dates
-//! at a time: `report::stream`) against the same file read whole: the same
-//! bytes on standard output and standard error, the same exit status.
+//! `implied` and `curve` on a history read date by date (two passes, a
+//! chunk of dates at a time: `report::stream`) against the same file read
+//! whole: the same bytes on standard output and standard error, the same
+//! exit status.
 //!
 //! The command line reads a regular file in date blocks in two passes and
 //! standard input whole, so the same file given both ways compares the two
@@ -56,10 +57,15 @@ fn skewbook_stdin(args: &[&str], input: &str) -> (i32, String, String) {
 /// its text on standard input (read whole): the same exit status, output
 /// and standard error (where the file is named `-`). Returns the file's run.
 fn same_both_ways(path: &str, args: &[&str]) -> (i32, String, String) {
+    same_both_ways_of("implied", path, args)
+}
+
+/// [`same_both_ways`] for `command`.
+fn same_both_ways_of(command: &str, path: &str, args: &[&str]) -> (i32, String, String) {
     let text = std::fs::read_to_string(path).expect("input");
-    let mut file_args = vec!["implied", path];
+    let mut file_args = vec![command, path];
     file_args.extend(args);
-    let mut stdin_args = vec!["implied", "-"];
+    let mut stdin_args = vec![command, "-"];
     stdin_args.extend(args);
     let (code, out, err) = skewbook(&file_args);
     let (code_whole, out_whole, err_whole) = skewbook_stdin(&stdin_args, &text);
@@ -440,5 +446,39 @@ fn a_history_without_tranches_has_the_same_columns_both_ways() {
             assert!(header.ends_with(",model"), "{header}");
             assert_eq!(out.lines().count(), 1);
         }
+    }
+}
+
+/// `curve` on the bundled history and on 308 dates (more than a chunk),
+/// with a date filter, and on a date no curve fits: the same bytes both
+/// ways in every format.
+#[test]
+fn curve_gives_the_same_bytes_both_ways() {
+    let long = write_temp("streaming-curve", long_history(14, 10));
+    for format in FORMATS {
+        for (path, extra) in [
+            (HISTORY, &[][..]),
+            (long.as_str(), &[][..]),
+            (
+                long.as_str(),
+                &["--from", "2026-07-01", "--to", "2027-07-01"][..],
+            ),
+        ] {
+            let mut args = vec!["--format", format];
+            args.extend(extra);
+            let (code, out, err) = same_both_ways_of("curve", path, &args);
+            assert_eq!(code, 0, "{err}");
+            assert!(!out.is_empty());
+        }
+    }
+    let text = history_text().replacen(
+        "index,2031-06-20,,,spread_bp,58,",
+        "index,2031-06-20,,,spread_bp,1,",
+        1,
+    );
+    let path = write_temp("streaming-curve-unfittable", text);
+    for format in FORMATS {
+        let (code, out, err) = same_both_ways_of("curve", &path, &["--format", format]);
+        assert_eq!((code, out.as_str()), (2, ""), "{err}");
     }
 }

@@ -11,7 +11,8 @@
 //!    keeping only counts, the first warnings and any curve errors;
 //! 2. [`HistoryPlan::chunks`] reads it again and hands over the dates
 //!    kept, [`CHUNK_DATES`] at a time, for the command to compute, print
-//!    and drop.
+//!    and drop ([`HistoryPlan::for_each_chunk`] computes a chunk while the
+//!    one before is printed).
 //!
 //! So every problem of the file, the filter's usage errors and every curve
 //! error are known before anything is printed, as when the file is read
@@ -204,6 +205,43 @@ impl HistoryPlan {
             read: 0,
             ended: false,
         })
+    }
+
+    /// Computes each chunk of dates kept ([`Self::chunks`]) with `compute`
+    /// and hands the results to `emit` in date order. A chunk is computed,
+    /// and the next one read, on the thread pool while the result of the
+    /// chunk before goes to `emit` on this thread, so printing and reading
+    /// take no time from the computing.
+    ///
+    /// # Errors
+    /// [`Self::chunks`]' errors, `compute`'s (the chunks before it emitted)
+    /// and `emit`'s, whichever comes first.
+    pub fn for_each_chunk<T: Send, E: From<Error>>(
+        &self,
+        compute: &(dyn Fn(&[MarketDate]) -> Result<T> + Sync),
+        emit: &mut dyn FnMut(T) -> std::result::Result<(), E>,
+    ) -> std::result::Result<(), E> {
+        let mut chunks = self.chunks()?;
+        let mut next = chunks.next();
+        let mut waiting: Option<T> = None;
+        while let Some(chunk) = next.take() {
+            let chunk = chunk?;
+            let (computed, following, emitted) = std::thread::scope(|s| {
+                let work = s.spawn(|| rayon::join(|| compute(&chunk), || chunks.next()));
+                let emitted = waiting.take().map_or(Ok(()), &mut *emit);
+                let (computed, following) = work
+                    .join()
+                    .unwrap_or_else(|panic| std::panic::resume_unwind(panic));
+                (computed, following, emitted)
+            });
+            emitted?;
+            waiting = Some(computed?);
+            next = following;
+        }
+        match waiting {
+            Some(last) => emit(last),
+            None => Ok(()),
+        }
     }
 
     /// The error of a file that changed between the passes.

@@ -22,8 +22,7 @@ const PROGRESS_FROM: usize = 20;
 /// the output.
 pub fn run(args: ImpliedArgs, out: &mut dyn Write) -> Result<Outcome, Failure> {
     let opts = args.market.curve.options()?;
-    let filter = args.market.dates.filter();
-    match skewbook::report::stream::plan(&args.market.file, &filter, &opts)? {
+    match crate::curve::plan(&args.market, &opts)? {
         Some(plan) => run_streamed(&args, &plan, &opts, out),
         None => run_whole(&args, &opts, out),
     }
@@ -53,9 +52,6 @@ fn run_streamed(
     opts: &MarketOptions,
     out: &mut dyn Write,
 ) -> Result<Outcome, Failure> {
-    for line in plan.warnings().lines() {
-        eprintln!("warning: {line}");
-    }
     let implied = options(args)?;
     let bar = bar(plan.dates(), args.quiet);
     let mut parts = PartWriter::new(out, args.market.format.into());

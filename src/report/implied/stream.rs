@@ -74,39 +74,17 @@ pub fn build_streamed<E: From<Error>>(
         large_pool: in_names && implied.compare_pool && plan.tranches() > 0,
     };
     let mut summary = RunSummary::default();
-    let mut chunks = plan.chunks()?;
-    let mut next = chunks.next();
-    let mut waiting: Option<ImpliedPart> = None;
-    while let Some(chunk) = next.take() {
-        let chunk = chunk?;
-        // The chunk is priced and the next one read on the thread pool
-        // while the chunk before is written here.
-        let (priced, following, emitted) = std::thread::scope(|s| {
-            let work = s.spawn(|| {
-                rayon::join(
-                    || build_dates(&chunk, plan.path(), opts, implied, done),
-                    || chunks.next(),
-                )
-            });
-            let emitted = waiting.take().map_or(Ok(()), |part| emit(&part));
-            let (priced, following) = work
-                .join()
-                .unwrap_or_else(|panic| std::panic::resume_unwind(panic));
-            (priced, following, emitted)
-        });
-        emitted?;
-        let dates = priced?;
-        for d in &dates {
-            summary.add(d);
-        }
-        waiting = Some(ImpliedPart {
-            report: ImpliedReport { dates },
-            columns,
-        });
-        next = following;
-    }
-    if let Some(part) = waiting {
-        emit(&part)?;
-    }
+    plan.for_each_chunk(
+        &|chunk| build_dates(chunk, plan.path(), opts, implied, done),
+        &mut |dates: Vec<ImpliedDate>| {
+            for d in &dates {
+                summary.add(d);
+            }
+            emit(&ImpliedPart {
+                report: ImpliedReport { dates },
+                columns,
+            })
+        },
+    )?;
     Ok(summary)
 }
