@@ -45,8 +45,8 @@
 //!
 //! [`DateReader`] reads a regular file whose dates come in ascending
 //! blocks one date at a time, by the same rules, keeping only the date
-//! being read; any other file, or one with a problem, is for
-//! [`read_snapshot`].
+//! being read and the problems found, which it reports as
+//! [`parse_snapshot`] does; any other file is for [`read_snapshot`].
 
 use super::cells::{self, invalid, pct, quoted, Header, Record, Row as Cells};
 #[cfg(doc)]
@@ -270,6 +270,9 @@ impl Rejected {
     }
     fn covers(&self, d: NaiveDate) -> bool {
         self.undated || self.dates.contains(&d)
+    }
+    fn is_empty(&self) -> bool {
+        !self.undated && self.dates.is_empty()
     }
 }
 

@@ -18,14 +18,18 @@
 //! error are known before anything is printed, as when the file is read
 //! whole.
 //!
+//! A file with problems is read to its end all the same: [`plan`] returns
+//! every problem, sorted by line, as the whole-file reader reports them,
+//! keeping only the problems (no bootstrap after the first).
+//!
 //! # When a file is read whole instead
 //!
 //! [`plan`] says `None`, and the command reads the file whole
 //! ([`crate::input::snapshot::read_snapshot`]) as before, when the file
 //! is standard input or not a regular file, when a date's rows are not in
-//! one block or the blocks not in ascending date order, and when the file
-//! has any problem at all: the whole-file reader then reports every
-//! problem, sorted by line, with the same messages.
+//! one block or the blocks not in ascending date order, and when a record
+//! cannot be read (a CSV syntax error, bytes that are not UTF-8): the
+//! whole-file reader then reports every problem with the same messages.
 
 use super::DateFilter;
 use crate::curve::{MarketOptions, Pool};
@@ -66,6 +70,8 @@ fn stamp(path: &str) -> Stamp {
 /// `None` when the file is to be read whole instead.
 ///
 /// # Errors
+/// [`ErrorKind::InvalidInput`] with every problem of the file, as
+/// [`crate::input::snapshot::read_snapshot`] reports them;
 /// [`ErrorKind::Usage`] when `from` is after `to` or the filter keeps no
 /// date of the file, as [`super::filter_dates`] reports it. Curve errors
 /// are not errors here: [`HistoryPlan::curves`] returns them, so that a
@@ -102,8 +108,13 @@ pub fn plan(path: &str, filter: &DateFilter, opts: &MarketOptions) -> Result<Opt
         }
         chunk = next;
     }
-    if reader.end() != Some(ReadEnd::Complete) || stamp(path) != before {
+    if stamp(path) != before {
         return Ok(None);
+    }
+    match reader.end() {
+        Some(ReadEnd::Complete) => {}
+        Some(ReadEnd::Invalid) => return Err(reader.into_error().unwrap_or_else(|| changed(path))),
+        _ => return Ok(None),
     }
     filter.check()?;
     if tally.dates == 0 {
@@ -246,14 +257,16 @@ impl HistoryPlan {
 
     /// The error of a file that changed between the passes.
     fn changed(&self) -> Error {
-        Error::msg(
-            ErrorKind::Io,
-            format!(
-                "{}: the file changed while it was being read; run the command again",
-                self.path
-            ),
-        )
+        changed(&self.path)
     }
+}
+
+/// The error of a file `path` that changed while it was read.
+fn changed(path: &str) -> Error {
+    Error::msg(
+        ErrorKind::Io,
+        format!("{path}: the file changed while it was being read; run the command again"),
+    )
 }
 
 /// The dates a [`HistoryPlan`] keeps, read again, [`CHUNK_DATES`] at a
