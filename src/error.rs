@@ -152,35 +152,84 @@ pub const MAX_LINES_PER_FILE: usize = 20;
 /// assert_eq!(lines[20], "q.csv: and 10 more like this");
 /// ```
 pub fn capped(problems: &[Problem], per_file: usize) -> Vec<String> {
-    // Files in order of first appearance: (path, lines, problems not shown).
-    let mut files: Vec<(Option<&str>, Vec<String>, usize)> = Vec::new();
+    let mut log = CappedProblems::new(per_file);
     for p in problems {
+        log.push(p);
+    }
+    log.lines()
+}
+
+/// Problems kept as they come, as [`capped`] prints them: the lines of at
+/// most `per_file` problems of each file and a count of the rest. For
+/// problems too many to keep (the warnings of a long history read date by
+/// date).
+///
+/// ```
+/// use skewbook::error::{capped, CappedProblems, Location, Problem};
+/// let at = |line| Problem::at(
+///     Location { path: "q.csv".into(), line, column: None, header: None },
+///     "expected a date",
+/// );
+/// let problems: Vec<Problem> = (2..=31).map(at).collect();
+/// let mut log = CappedProblems::new(20);
+/// problems.iter().for_each(|p| log.push(p));
+/// assert_eq!(log.lines(), capped(&problems, 20));
+/// assert_eq!(log.count(), 30);
+/// ```
+#[derive(Debug, Clone, Default)]
+pub struct CappedProblems {
+    per_file: usize,
+    /// Files in order of first appearance: (path, lines, problems not shown).
+    files: Vec<(Option<String>, Vec<String>, usize)>,
+}
+
+impl CappedProblems {
+    /// Keeps at most `per_file` lines of each file.
+    pub fn new(per_file: usize) -> Self {
+        CappedProblems {
+            per_file,
+            files: Vec::new(),
+        }
+    }
+
+    /// Takes one more problem.
+    pub fn push(&mut self, p: &Problem) {
         let path = p.location.as_ref().map(|l| l.path.as_str());
-        let i = match files.iter().position(|f| f.0 == path) {
+        let i = match self.files.iter().position(|f| f.0.as_deref() == path) {
             Some(i) => i,
             None => {
-                files.push((path, Vec::new(), 0));
-                files.len() - 1
+                self.files.push((path.map(str::to_string), Vec::new(), 0));
+                self.files.len() - 1
             }
         };
-        let f = &mut files[i];
-        if f.1.len() < per_file {
+        let f = &mut self.files[i];
+        if f.1.len() < self.per_file {
             f.1.push(p.to_string());
         } else {
             f.2 += 1;
         }
     }
-    let mut out = Vec::new();
-    for (path, lines, more) in files {
-        out.extend(lines);
-        if more > 0 {
-            out.push(match path {
-                Some(p) => format!("{p}: and {more} more like this"),
-                None => format!("and {more} more like this"),
-            });
-        }
+
+    /// Problems taken.
+    pub fn count(&self) -> usize {
+        self.files.iter().map(|f| f.1.len() + f.2).sum()
     }
-    out
+
+    /// The lines to print: each file's, then `path: and N more like this`
+    /// for a file that has more.
+    pub fn lines(&self) -> Vec<String> {
+        let mut out = Vec::new();
+        for (path, lines, more) in &self.files {
+            out.extend(lines.iter().cloned());
+            if *more > 0 {
+                out.push(match path {
+                    Some(p) => format!("{p}: and {more} more like this"),
+                    None => format!("and {more} more like this"),
+                });
+            }
+        }
+        out
+    }
 }
 
 /// Result with the library's [`Error`].

@@ -199,15 +199,45 @@ pub fn select_date(snapshot: &Snapshot, only: Option<chrono::NaiveDate>) -> Resu
 /// The dates of a snapshot for a message: all of them up to six, else the
 /// count and the first and last.
 pub fn date_span(snapshot: &Snapshot) -> String {
-    let have: Vec<String> = snapshot.dates.iter().map(|m| m.date.to_string()).collect();
-    if have.len() > 6 {
-        format!(
-            "{} dates, {} to {}",
-            have.len(),
-            have[0],
-            have[have.len() - 1]
-        )
-    } else {
-        have.join(", ")
+    let mut span = DateSpan::default();
+    for m in &snapshot.dates {
+        span.add(m.date);
+    }
+    span.to_string()
+}
+
+/// The dates of a file, counted as they come, for a message (what
+/// [`date_span`] says): all of them up to six, else the count and the
+/// first and last.
+#[derive(Debug, Clone, Default, PartialEq, Eq)]
+pub struct DateSpan {
+    count: usize,
+    /// The first six dates.
+    head: Vec<NaiveDate>,
+    last: Option<NaiveDate>,
+}
+
+impl DateSpan {
+    /// Counts one more date.
+    pub fn add(&mut self, d: NaiveDate) {
+        self.count += 1;
+        if self.head.len() < 6 {
+            self.head.push(d);
+        }
+        self.last = Some(d);
+    }
+}
+
+impl std::fmt::Display for DateSpan {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        match (self.head.first(), self.last) {
+            (Some(first), Some(last)) if self.count > 6 => {
+                write!(f, "{} dates, {first} to {last}", self.count)
+            }
+            _ => {
+                let have: Vec<String> = self.head.iter().map(|d| d.to_string()).collect();
+                write!(f, "{}", have.join(", "))
+            }
+        }
     }
 }

@@ -344,7 +344,8 @@ fn mutate_once(rng: &mut ChaCha8Rng, bytes: Vec<u8>) -> Vec<u8> {
     join_lines(&lines)
 }
 
-fn mutate(rng: &mut ChaCha8Rng, bytes: &[u8]) -> Vec<u8> {
+/// One to five random mutations of a file (also used by `streaming`).
+pub(crate) fn mutate(rng: &mut ChaCha8Rng, bytes: &[u8]) -> Vec<u8> {
     let mut b = bytes.to_vec();
     // Mostly one mutation, sometimes a few (a file with several problems).
     let n = [1, 1, 1, 2, 2, 3, 5][rng.random_range(0..7)];

@@ -62,6 +62,9 @@ mod skew_cli;
 mod skew_history;
 /// Snapshot reader: valid files, every validation rule, malformed fixtures, fuzzing.
 mod snapshot;
+/// `implied` on a history read date by date in two passes against the
+/// file read whole: the same bytes, warnings, summary, errors and exit status.
+mod streaming;
 /// Trades and pools readers: valid files, round trips, every rule located.
 mod trades_pools;
 /// Tranche legs, compound and base correlation.

@@ -21,6 +21,7 @@
 
 use crate::error::{Error, ErrorKind, Location, Problem};
 use chrono::NaiveDate;
+use std::io::Read;
 
 /// Longest cell text quoted back in a message, in characters.
 pub(crate) const QUOTE_CHARS: usize = 60;
@@ -38,33 +39,97 @@ pub(crate) struct Record {
 /// pathological input) is reported and ends the reading.
 pub(crate) fn records(text: &str, path: &str, problems: &mut Vec<Problem>) -> Vec<Record> {
     let text = text.strip_prefix('\u{feff}').unwrap_or(text);
-    let mut rdr = csv::ReaderBuilder::new()
-        .has_headers(false)
-        .flexible(true)
-        .from_reader(text.as_bytes());
-    let mut lines = LineCounter::new(text);
+    let mut reader = RecordReader::new(text.as_bytes());
     let mut out = Vec::new();
-    for r in rdr.records() {
+    while let Some(r) = reader.next_record(path) {
         match r {
-            Ok(rec) => {
-                let line = rec.position().map_or(1, |p| lines.record_line(p.byte()));
-                if rec.len() == 1 && rec[0].trim().is_empty() {
-                    continue;
-                }
-                out.push(Record { line, cells: rec });
-            }
-            Err(e) => {
-                let line = e.position().map_or(1, |p| lines.record_line(p.byte()));
-                problems.push(Problem::at(
-                    plain_location(path, line),
-                    format!("expected CSV text, found an unreadable record ({e})"),
-                ));
-                break;
-            }
+            Ok(rec) => out.push(rec),
+            Err(p) => problems.push(p),
         }
     }
     out
 }
+
+/// The records of a CSV source one at a time, with their true line
+/// numbers: what [`records`] collects, for a file read as it goes (a long
+/// history) instead of held whole. A byte-order mark must be dropped
+/// before the source is handed over.
+pub(crate) struct RecordReader<R: Read> {
+    csv: csv::Reader<Seen<R>>,
+    lines: LineCounter,
+    /// A record could not be read: reading has ended.
+    failed: bool,
+}
+
+impl<R: Read> RecordReader<R> {
+    /// Starts reading `source`.
+    pub fn new(source: R) -> Self {
+        let seen = Seen {
+            inner: source,
+            bytes: Vec::new(),
+            base: 0,
+        };
+        RecordReader {
+            csv: csv::ReaderBuilder::new()
+                .has_headers(false)
+                .flexible(true)
+                .from_reader(seen),
+            lines: LineCounter { at: 0, line: 1 },
+            failed: false,
+        }
+    }
+
+    /// The next non-blank record; `None` at the end. A record that cannot
+    /// be read (a CSV syntax error, bytes that are not UTF-8, a read error)
+    /// is one problem at its line, and ends the reading.
+    pub fn next_record(&mut self, path: &str) -> Option<Result<Record, Problem>> {
+        while !self.failed {
+            let mut cells = csv::StringRecord::new();
+            match self.csv.read_record(&mut cells) {
+                Ok(false) => return None,
+                Ok(true) => {
+                    let line = cells
+                        .position()
+                        .map_or(1, |p| self.lines.record_line(self.csv.get_mut(), p.byte()));
+                    if cells.len() == 1 && cells[0].trim().is_empty() {
+                        continue;
+                    }
+                    return Some(Ok(Record { line, cells }));
+                }
+                Err(e) => {
+                    self.failed = true;
+                    let line = e
+                        .position()
+                        .map_or(1, |p| self.lines.record_line(self.csv.get_mut(), p.byte()));
+                    return Some(Err(Problem::at(
+                        plain_location(path, line),
+                        format!("expected CSV text, found an unreadable record ({e})"),
+                    )));
+                }
+            }
+        }
+        None
+    }
+}
+
+/// A source that keeps the bytes read through it, from byte `base` of the
+/// source on, so that line breaks can be counted behind the CSV reader.
+struct Seen<R> {
+    inner: R,
+    bytes: Vec<u8>,
+    base: usize,
+}
+
+impl<R: Read> Read for Seen<R> {
+    fn read(&mut self, buf: &mut [u8]) -> std::io::Result<usize> {
+        let n = self.inner.read(buf)?;
+        self.bytes.extend_from_slice(&buf[..n]);
+        Ok(n)
+    }
+}
+
+/// Bytes already counted that [`Seen`] may keep before it forgets them.
+const SEEN_KEPT: usize = 1 << 16;
 
 /// Line numbers from byte offsets.
 ///
@@ -75,40 +140,37 @@ pub(crate) fn records(text: &str, path: &str, problems: &mut Vec<Problem>) -> Ve
 /// `\n` of a preceding `\r\n`. So lines are counted here from the byte
 /// offset instead: skip the line breaks in front of the record, then count
 /// the breaks (`\n`, `\r\n` or a lone `\r`, as csv reads them) before it.
-struct LineCounter<'t> {
-    bytes: &'t [u8],
+struct LineCounter {
     /// Offset up to which breaks are counted, and the line there.
     at: usize,
     line: u64,
 }
 
-impl<'t> LineCounter<'t> {
-    fn new(text: &'t str) -> Self {
-        LineCounter {
-            bytes: text.as_bytes(),
-            at: 0,
-            line: 1,
-        }
-    }
-
+impl LineCounter {
     /// Line of the record whose reading began at byte `offset` (offsets
-    /// come in increasing order).
-    fn record_line(&mut self, offset: u64) -> u64 {
-        let b = self.bytes;
-        let mut start = (offset as usize).min(b.len());
-        while start < b.len() && (b[start] == b'\n' || b[start] == b'\r') {
+    /// come in increasing order, and the reader has read the record, so
+    /// its first byte is in `seen`). Counted bytes are then forgotten.
+    fn record_line<R>(&mut self, seen: &mut Seen<R>, offset: u64) -> u64 {
+        let (b, base) = (&seen.bytes, seen.base);
+        let end = base + b.len();
+        let mut start = (offset as usize).clamp(base, end);
+        while start < end && (b[start - base] == b'\n' || b[start - base] == b'\r') {
             start += 1;
         }
         if start < self.at {
             return self.line;
         }
         for i in self.at..start {
-            let lone_cr = b[i] == b'\r' && b.get(i + 1) != Some(&b'\n');
-            if b[i] == b'\n' || lone_cr {
+            let lone_cr = b[i - base] == b'\r' && b.get(i + 1 - base) != Some(&b'\n');
+            if b[i - base] == b'\n' || lone_cr {
                 self.line += 1;
             }
         }
         self.at = start;
+        if self.at - base > SEEN_KEPT {
+            seen.bytes.drain(..self.at - base);
+            seen.base = self.at;
+        }
         self.line
     }
 }
@@ -702,21 +764,19 @@ mod tests {
         assert_eq!(pct(0.0), "0");
     }
 
+    /// `(line, first cell)` of every record of `text`.
+    fn lines_of(text: &str) -> Vec<(u64, String)> {
+        let mut problems = Vec::new();
+        let recs = records(text, "f.csv", &mut problems);
+        assert!(problems.is_empty());
+        recs.iter()
+            .map(|r| (r.line, r.cells[0].to_string()))
+            .collect()
+    }
+
     #[test]
     fn line_numbers_survive_crlf_lone_cr_and_blank_lines() {
         let text = "h\r\na\r\n\r\nb\rc\n\n\nd\n\"e\nf\"\ng";
-        let mut rdr = csv::ReaderBuilder::new()
-            .has_headers(false)
-            .from_reader(text.as_bytes());
-        let mut lines = LineCounter::new(text);
-        let got: Vec<(u64, String)> = rdr
-            .records()
-            .map(|r| {
-                let r = r.expect("record");
-                let line = lines.record_line(r.position().expect("position").byte());
-                (line, r[0].to_string())
-            })
-            .collect();
         let want = [
             (1, "h"),
             (2, "a"),
@@ -727,7 +787,64 @@ mod tests {
             (11, "g"),
         ];
         let want: Vec<(u64, String)> = want.iter().map(|(l, s)| (*l, s.to_string())).collect();
-        assert_eq!(got, want);
+        assert_eq!(lines_of(text), want);
+    }
+
+    /// A source that hands over one byte a read.
+    struct Trickle<'a>(&'a [u8]);
+
+    impl std::io::Read for Trickle<'_> {
+        fn read(&mut self, buf: &mut [u8]) -> std::io::Result<usize> {
+            match (self.0.split_first(), buf.first_mut()) {
+                (Some((b, rest)), Some(slot)) => {
+                    *slot = *b;
+                    self.0 = rest;
+                    Ok(1)
+                }
+                _ => Ok(0),
+            }
+        }
+    }
+
+    /// Read as it comes (one byte a read, then a text long enough that the
+    /// counted bytes are forgotten several times), the lines are those of
+    /// the text read whole, counted independently here by splitting it.
+    #[test]
+    fn lines_are_the_same_read_as_it_comes() {
+        let mut text = String::new();
+        let mut want = Vec::new();
+        let mut line = 1;
+        for i in 0..20_000u64 {
+            let (cell, breaks) = match i % 5 {
+                0 => (format!("r{i}"), "\r\n"),
+                1 => (format!("r{i}"), "\r"),
+                2 => (format!("\"r{i}\nx\""), "\n\n"),
+                3 => (format!("r{i}"), "\n \n"),
+                _ => (format!("r{i}"), "\n"),
+            };
+            want.push((line, cell.trim_matches('"').to_string()));
+            line += cell.matches('\n').count() as u64
+                + breaks.matches('\n').count() as u64
+                + breaks
+                    .matches('\r')
+                    .filter(|_| !breaks.contains("\r\n"))
+                    .count() as u64;
+            text.push_str(&cell);
+            text.push_str(breaks);
+        }
+        let read = |source: &mut dyn std::io::Read| {
+            let mut reader = RecordReader::new(source);
+            let mut got = Vec::new();
+            while let Some(r) = reader.next_record("f.csv") {
+                let r = r.expect("record");
+                got.push((r.line, r.cells[0].to_string()));
+            }
+            got
+        };
+        assert_eq!(lines_of(&text), want);
+        assert_eq!(read(&mut text.as_bytes()), want);
+        let short = &text[..2000];
+        assert_eq!(read(&mut Trickle(short.as_bytes())), lines_of(short));
     }
 
     #[test]

@@ -40,6 +40,13 @@
 //! not run from 0 upward without gaps or overlaps are still read: curve and
 //! pricing work do not need a tiling, base correlation does. Each break is a
 //! [`Problem`] in [`Snapshot::warnings`]; commands decide what to do with it.
+//!
+//! # A long history, date by date
+//!
+//! [`DateReader`] reads a regular file whose dates come in ascending
+//! blocks one date at a time, by the same rules, keeping only the date
+//! being read and the problems found, which it reports as
+//! [`parse_snapshot`] does; any other file is for [`read_snapshot`].
 
 use super::cells::{self, invalid, pct, quoted, Header, Record, Row as Cells};
 #[cfg(doc)]
@@ -50,6 +57,9 @@ use crate::market::{
 };
 use chrono::NaiveDate;
 use std::collections::{BTreeMap, HashMap, HashSet};
+
+mod by_date;
+pub use by_date::{DateBlock, DateReader, ReadEnd};
 
 /// Column names, in the order the conventions list them.
 const COLUMNS: [&str; 9] = [
@@ -143,18 +153,9 @@ pub fn parse_snapshot(text: &str, path: &str) -> Result<Snapshot> {
     let mut problems = Vec::new();
     let records = cells::records(text, path, &mut problems);
 
-    let Some(header) = records.first() else {
-        problems.push(cells::empty_file(path, "quote"));
+    let Some(sheet) = sheet(path, records.first(), &mut problems) else {
         return Err(invalid(problems));
     };
-    let Some(sheet) = cells::header(path, header, &COLUMNS, &mut problems) else {
-        return Err(invalid(problems));
-    };
-    // Rows cannot be read without every required column; unknown and
-    // repeated names are reported but rows are still checked.
-    if !sheet.require(REQUIRED, &mut problems) {
-        return Err(invalid(problems));
-    }
     if records.len() == 1 {
         problems.push(cells::header_only(&sheet, "quote"));
         return Err(invalid(problems));
@@ -171,6 +172,23 @@ pub fn parse_snapshot(text: &str, path: &str) -> Result<Snapshot> {
 
     let snapshot = assemble(&sheet, rows, &rejected, &mut problems);
     cells::finish(snapshot, problems)
+}
+
+/// The header of a snapshot file (its first record), or `None` when rows
+/// cannot be read: an empty file, no header row, a required column
+/// missing. Unknown and repeated names are reported but rows are still
+/// checked.
+fn sheet<'a>(
+    path: &'a str,
+    first: Option<&Record>,
+    problems: &mut Vec<Problem>,
+) -> Option<Header<'a>> {
+    let Some(header) = first else {
+        problems.push(cells::empty_file(path, "quote"));
+        return None;
+    };
+    let sheet = cells::header(path, header, &COLUMNS, problems)?;
+    sheet.require(REQUIRED, problems).then_some(sheet)
 }
 
 #[derive(Clone, Copy, PartialEq, Eq)]
@@ -252,6 +270,9 @@ impl Rejected {
     }
     fn covers(&self, d: NaiveDate) -> bool {
         self.undated || self.dates.contains(&d)
+    }
+    fn is_empty(&self) -> bool {
+        !self.undated && self.dates.is_empty()
     }
 }
 
@@ -433,161 +454,11 @@ fn assemble(
     let mut dates = Vec::new();
     let mut warnings = Vec::new();
     for (date, rows) in by_date {
-        // Rows are in line order within a date.
-        let mut seen: HashMap<Key, u64> = HashMap::new();
-        for r in &rows {
-            let (key, what) = match &r.body {
-                Body::Index(_) => (
-                    Key::Index(r.maturity),
-                    format!("one index quote per maturity on {date}, found a second for {}", r.maturity),
-                ),
-                Body::Tranche { attach, detach, .. } => (
-                    Key::Tranche(r.maturity, (attach + 0.0).to_bits(), (detach + 0.0).to_bits()),
-                    format!(
-                        "one tranche quote per maturity and bounds on {date}, found a second for {} [{}, {}] percent",
-                        r.maturity,
-                        pct(*attach),
-                        pct(*detach)
-                    ),
-                ),
-                Body::Zero(_) => (
-                    Key::Zero(r.maturity),
-                    format!("one zero rate per pillar date on {date}, found a second for {}", r.maturity),
-                ),
-            };
-            if let Some(first) = seen.get(&key) {
-                problems.push(Problem::at(
-                    sheet.at(r.line, MATURITY),
-                    format!("expected {what} (lines {first} and {})", r.line),
-                ));
-            } else {
-                seen.insert(key, r.line);
-            }
+        let (day, no_index) = assemble_date(sheet, date, rows, problems, &mut warnings);
+        if let Some(p) = no_index.filter(|_| !rejected.covers(date)) {
+            problems.push(p);
         }
-
-        let index_rows: Vec<&Row> = rows
-            .iter()
-            .filter(|r| matches!(r.body, Body::Index(_)))
-            .collect();
-        let recovery = index_rows
-            .first()
-            .and_then(|r| r.recovery.as_ref().map(|x| x.0));
-        let recovery_at = index_rows.first().and_then(|r| {
-            r.recovery
-                .as_ref()
-                .map(|(v, text)| (r.line, *v, text.clone()))
-        });
-        if let Some(first) = index_rows.first() {
-            let describe = |r: &Row| match &r.recovery {
-                Some((_, text)) => quoted(text),
-                None => "an empty cell".to_string(),
-            };
-            for r in &index_rows[1..] {
-                if r.recovery.as_ref().map(|x| x.0) != first.recovery.as_ref().map(|x| x.0) {
-                    problems.push(Problem::at(
-                        sheet.at(r.line, RECOVERY),
-                        format!(
-                            "expected the same recovery on every index row of {date}, found {} here and {} on line {}",
-                            describe(r),
-                            describe(first),
-                            first.line
-                        ),
-                    ));
-                }
-            }
-        }
-
-        if index_rows.is_empty() && !rejected.covers(date) {
-            let first_tranche = rows.iter().find(|r| matches!(r.body, Body::Tranche { .. }));
-            if let Some(t) = first_tranche {
-                problems.push(Problem::at(
-                    sheet.at(t.line, DATE),
-                    format!(
-                        "expected an index quote on {date} to price its tranches, found none (first tranche on line {})",
-                        t.line
-                    ),
-                ));
-            } else if let Some(z) = rows.first() {
-                problems.push(Problem::at(
-                    sheet.at(z.line, DATE),
-                    format!(
-                        "expected an index quote on {date}, found only zero rows (first on line {}): nothing to price",
-                        z.line
-                    ),
-                ));
-            }
-        }
-
-        let mut index = Vec::new();
-        let mut tranches = Vec::new();
-        let mut zeros = Vec::new();
-        for r in rows {
-            match r.body {
-                Body::Index(quote) => index.push(IndexQuote {
-                    maturity: r.maturity,
-                    quote,
-                    line: r.line,
-                }),
-                Body::Tranche {
-                    attach,
-                    detach,
-                    quote,
-                } => tranches.push(TrancheQuote {
-                    maturity: r.maturity,
-                    attach,
-                    detach,
-                    quote,
-                    line: r.line,
-                }),
-                Body::Zero(rate) => zeros.push(ZeroPillar {
-                    date: r.maturity,
-                    rate,
-                    line: r.line,
-                }),
-            }
-        }
-        index.sort_by_key(|q| (q.maturity, q.line));
-        tranches.sort_by(|a, b| {
-            a.maturity
-                .cmp(&b.maturity)
-                .then(a.attach.total_cmp(&b.attach))
-                .then(a.detach.total_cmp(&b.detach))
-                .then(a.line.cmp(&b.line))
-        });
-        zeros.sort_by_key(|z| (z.date, z.line));
-
-        tiling_warnings(sheet, date, &tranches, &mut warnings);
-        unit_warnings(
-            sheet,
-            date,
-            recovery_at,
-            (&index, &tranches, &zeros),
-            &mut warnings,
-        );
-        // Past the last index maturity the hazard curve is only extended flat.
-        if let Some(last) = index.last().map(|q| q.maturity) {
-            let mut seen = Vec::new();
-            for t in tranches.iter().filter(|t| t.maturity > last) {
-                if !seen.contains(&t.maturity) {
-                    seen.push(t.maturity);
-                    warnings.push(Problem::at(
-                        sheet.at(t.line, MATURITY),
-                        format!(
-                            "tranches of {date} maturing {} run past the last index maturity {last}: the hazard curve is extended flat beyond it",
-                            t.maturity
-                        ),
-                    ));
-                }
-            }
-        }
-
-        dates.push(MarketDate {
-            date,
-            recovery,
-            index,
-            tranches,
-            zeros,
-        });
+        dates.push(day);
     }
 
     Snapshot {
@@ -595,6 +466,192 @@ fn assemble(
         dates,
         warnings,
     }
+}
+
+/// One date's rows (all of them, in line order) checked together and
+/// sorted: duplicates and recovery disagreements go to `problems`, the
+/// date's warnings to `warnings`. A date with no index quote comes back
+/// with its problem apart, for the caller to report unless a rejected row
+/// may have been that quote.
+fn assemble_date(
+    sheet: &Header,
+    date: NaiveDate,
+    rows: Vec<Row>,
+    problems: &mut Vec<Problem>,
+    warnings: &mut Vec<Problem>,
+) -> (MarketDate, Option<Problem>) {
+    // Rows are in line order within a date.
+    let mut seen: HashMap<Key, u64> = HashMap::new();
+    for r in &rows {
+        let key = match &r.body {
+            Body::Index(_) => Key::Index(r.maturity),
+            Body::Tranche { attach, detach, .. } => Key::Tranche(
+                r.maturity,
+                (attach + 0.0).to_bits(),
+                (detach + 0.0).to_bits(),
+            ),
+            Body::Zero(_) => Key::Zero(r.maturity),
+        };
+        let Some(first) = seen.get(&key) else {
+            seen.insert(key, r.line);
+            continue;
+        };
+        let what = match &r.body {
+            Body::Index(_) => format!(
+                "one index quote per maturity on {date}, found a second for {}",
+                r.maturity
+            ),
+            Body::Tranche { attach, detach, .. } => format!(
+                "one tranche quote per maturity and bounds on {date}, found a second for {} [{}, {}] percent",
+                r.maturity,
+                pct(*attach),
+                pct(*detach)
+            ),
+            Body::Zero(_) => format!(
+                "one zero rate per pillar date on {date}, found a second for {}",
+                r.maturity
+            ),
+        };
+        problems.push(Problem::at(
+            sheet.at(r.line, MATURITY),
+            format!("expected {what} (lines {first} and {})", r.line),
+        ));
+    }
+
+    let index_rows: Vec<&Row> = rows
+        .iter()
+        .filter(|r| matches!(r.body, Body::Index(_)))
+        .collect();
+    let recovery = index_rows
+        .first()
+        .and_then(|r| r.recovery.as_ref().map(|x| x.0));
+    let recovery_at = index_rows.first().and_then(|r| {
+        r.recovery
+            .as_ref()
+            .map(|(v, text)| (r.line, *v, text.clone()))
+    });
+    if let Some(first) = index_rows.first() {
+        let describe = |r: &Row| match &r.recovery {
+            Some((_, text)) => quoted(text),
+            None => "an empty cell".to_string(),
+        };
+        for r in &index_rows[1..] {
+            if r.recovery.as_ref().map(|x| x.0) != first.recovery.as_ref().map(|x| x.0) {
+                problems.push(Problem::at(
+                    sheet.at(r.line, RECOVERY),
+                    format!(
+                        "expected the same recovery on every index row of {date}, found {} here and {} on line {}",
+                        describe(r),
+                        describe(first),
+                        first.line
+                    ),
+                ));
+            }
+        }
+    }
+
+    let no_index = if index_rows.is_empty() {
+        missing_index(sheet, date, &rows)
+    } else {
+        None
+    };
+
+    let mut index = Vec::new();
+    let mut tranches = Vec::new();
+    let mut zeros = Vec::new();
+    for r in rows {
+        match r.body {
+            Body::Index(quote) => index.push(IndexQuote {
+                maturity: r.maturity,
+                quote,
+                line: r.line,
+            }),
+            Body::Tranche {
+                attach,
+                detach,
+                quote,
+            } => tranches.push(TrancheQuote {
+                maturity: r.maturity,
+                attach,
+                detach,
+                quote,
+                line: r.line,
+            }),
+            Body::Zero(rate) => zeros.push(ZeroPillar {
+                date: r.maturity,
+                rate,
+                line: r.line,
+            }),
+        }
+    }
+    index.sort_by_key(|q| (q.maturity, q.line));
+    tranches.sort_by(|a, b| {
+        a.maturity
+            .cmp(&b.maturity)
+            .then(a.attach.total_cmp(&b.attach))
+            .then(a.detach.total_cmp(&b.detach))
+            .then(a.line.cmp(&b.line))
+    });
+    zeros.sort_by_key(|z| (z.date, z.line));
+
+    tiling_warnings(sheet, date, &tranches, warnings);
+    unit_warnings(
+        sheet,
+        date,
+        recovery_at,
+        (&index, &tranches, &zeros),
+        warnings,
+    );
+    // Past the last index maturity the hazard curve is only extended flat.
+    if let Some(last) = index.last().map(|q| q.maturity) {
+        let mut seen = Vec::new();
+        for t in tranches.iter().filter(|t| t.maturity > last) {
+            if !seen.contains(&t.maturity) {
+                seen.push(t.maturity);
+                warnings.push(Problem::at(
+                    sheet.at(t.line, MATURITY),
+                    format!(
+                        "tranches of {date} maturing {} run past the last index maturity {last}: the hazard curve is extended flat beyond it",
+                        t.maturity
+                    ),
+                ));
+            }
+        }
+    }
+
+    (
+        MarketDate {
+            date,
+            recovery,
+            index,
+            tranches,
+            zeros,
+        },
+        no_index,
+    )
+}
+
+/// The problem of a date without an index quote: its tranches cannot be
+/// priced, or it has only zero rows.
+fn missing_index(sheet: &Header, date: NaiveDate, rows: &[Row]) -> Option<Problem> {
+    let first_tranche = rows.iter().find(|r| matches!(r.body, Body::Tranche { .. }));
+    if let Some(t) = first_tranche {
+        return Some(Problem::at(
+            sheet.at(t.line, DATE),
+            format!(
+                "expected an index quote on {date} to price its tranches, found none (first tranche on line {})",
+                t.line
+            ),
+        ));
+    }
+    let z = rows.first()?;
+    Some(Problem::at(
+        sheet.at(z.line, DATE),
+        format!(
+            "expected an index quote on {date}, found only zero rows (first on line {}): nothing to price",
+            z.line
+        ),
+    ))
 }
 
 /// Warnings for a date whose numbers all look like fractions typed in a

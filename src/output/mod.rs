@@ -27,10 +27,19 @@
 //!
 //! Output is rendered in full before it is written, so a write error (a
 //! broken pipe included) keeps its [`io::ErrorKind`].
+//!
+//! # A report in parts
+//!
+//! A long history's report is printed a few hundred dates at a time by
+//! [`PartWriter`], with the bytes [`write_report`] prints for the whole.
+//! The guard then checks each part before it is written: a non-finite
+//! number stops the printing there, after the parts before it.
 
 mod finite;
+mod parts;
 
 pub use finite::{check_finite, NonFinite};
+pub use parts::PartWriter;
 
 pub use crate::error::significant;
 use serde::Serialize;
@@ -151,15 +160,7 @@ pub fn check_report<R: Report>(report: &R, format: Format) -> Result<(), NonFini
 /// [`WriteError::NotFinite`] when the guard finds a NaN or an infinity
 /// (after failing a `debug_assert!` in a debug build).
 pub fn render<R: Report>(report: &R, format: Format) -> Result<Vec<u8>, WriteError> {
-    let checked = check_report(report, format);
-    debug_assert!(
-        checked.is_ok(),
-        "output guard: {}",
-        checked
-            .as_ref()
-            .map_or_else(|e| e.to_string(), |_| String::new())
-    );
-    checked?;
+    guard(report, format)?;
     let mut buf = Vec::new();
     match format {
         Format::Table => {
@@ -177,6 +178,20 @@ pub fn render<R: Report>(report: &R, format: Format) -> Result<Vec<u8>, WriteErr
         }
     }
     Ok(buf)
+}
+
+/// The output guard of [`render`]: [`check_report`], failing a
+/// `debug_assert!` in a debug build.
+fn guard<R: Report>(report: &R, format: Format) -> Result<(), NonFinite> {
+    let checked = check_report(report, format);
+    debug_assert!(
+        checked.is_ok(),
+        "output guard: {}",
+        checked
+            .as_ref()
+            .map_or_else(|e| e.to_string(), |_| String::new())
+    );
+    checked
 }
 
 /// Prints `report` in `format`: [`render`], then one write.
@@ -301,6 +316,11 @@ pub fn write_table(w: &mut dyn Write, t: &Table) -> io::Result<()> {
 pub fn write_csv(w: &mut dyn Write, t: &Table) -> io::Result<()> {
     let mut wr = csv::Writer::from_writer(w);
     wr.write_record(&t.headers).map_err(csv_io)?;
+    write_csv_rows(&mut wr, t)
+}
+
+/// Writes a CSV table's rows (no header) as [`write_csv`] writes them.
+fn write_csv_rows(wr: &mut csv::Writer<&mut dyn Write>, t: &Table) -> io::Result<()> {
     for r in &t.rows {
         wr.write_record(r).map_err(csv_io)?;
     }

@@ -20,10 +20,12 @@
 //! ```
 
 use super::pools_for_all_dates;
-use crate::curve::{MarketOptions, Pillar};
-use crate::error::Result;
+use super::stream::HistoryPlan;
+use crate::curve::{MarketOptions, Pillar, Pool};
+use crate::error::{collect_all, Result};
 use crate::market::Snapshot;
 use crate::output::{csv_num, fixed, pct, sci, Report, Table};
+use rayon::prelude::*;
 use serde::Serialize;
 
 /// One pillar of the curve report.
@@ -94,14 +96,47 @@ pub struct CurveReport {
 /// Every date's unfittable index quote or bad zero pillar, together.
 pub fn build(snapshot: &Snapshot, opts: &MarketOptions) -> Result<CurveReport> {
     let dates = pools_for_all_dates(snapshot, opts)?
-        .into_iter()
-        .map(|(_, c)| CurveDate {
-            date: c.date.to_string(),
-            recovery: c.recovery,
-            index: c.pillars.iter().map(CurvePillar::from).collect(),
-        })
+        .iter()
+        .map(|(_, pool)| CurveDate::from(pool))
         .collect();
     Ok(CurveReport { dates })
+}
+
+impl From<&Pool> for CurveDate {
+    fn from(pool: &Pool) -> Self {
+        CurveDate {
+            date: pool.date.to_string(),
+            recovery: pool.recovery,
+            index: pool.pillars.iter().map(CurvePillar::from).collect(),
+        }
+    }
+}
+
+/// The curves of every date of a history read in two passes
+/// ([`crate::report::stream::plan`]): a chunk of dates at a time,
+/// bootstrapped in parallel, each chunk's report to `emit` in date order,
+/// to be printed and dropped. Put together, the chunks are the report
+/// [`build`] gives for the file read whole.
+///
+/// # Errors
+/// Before any chunk, every curve error, as [`build`]; then an error of
+/// `emit` or the file changing between the passes.
+pub fn build_streamed<E: From<crate::Error>>(
+    plan: &HistoryPlan,
+    opts: &MarketOptions,
+    emit: &mut dyn FnMut(&CurveReport) -> std::result::Result<(), E>,
+) -> std::result::Result<(), E> {
+    plan.curves()?;
+    plan.for_each_chunk(
+        &|chunk| {
+            let built: Vec<Result<CurveDate>> = chunk
+                .par_iter()
+                .map(|md| Pool::build(md, opts, plan.path()).map(|pool| CurveDate::from(&pool)))
+                .collect();
+            collect_all(built).map(|dates| CurveReport { dates })
+        },
+        &mut |report| emit(&report),
+    )
 }
 
 /// A quote as the table shows it: `61.50bp` or `-2.125%+500`.

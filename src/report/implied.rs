@@ -100,6 +100,9 @@ use crate::solve::compound::{RHO_MAX, RHO_MIN};
 use rayon::prelude::*;
 use serde::Serialize;
 
+mod stream;
+pub use stream::{build_streamed, ImpliedPart};
+
 /// One tranche's implied correlations.
 #[derive(Debug, Clone, Serialize, PartialEq)]
 pub struct ImpliedTranche {
@@ -364,6 +367,27 @@ pub struct ImpliedOptions {
     pub compare_pool: bool,
 }
 
+impl ImpliedOptions {
+    /// Checks the options before a run.
+    ///
+    /// # Errors
+    /// [`crate::ErrorKind::Usage`] for a tolerance that is not a finite
+    /// number of 0 bp or more.
+    pub fn check(&self) -> Result<()> {
+        let tol = self.index_tolerance_bp;
+        if tol.is_finite() && tol >= 0.0 {
+            return Ok(());
+        }
+        Err(crate::Error::msg(
+            crate::ErrorKind::Usage,
+            format!(
+                "--index-tolerance: expected a number of bp of 0 or more, found {}",
+                significant(tol, 6)
+            ),
+        ))
+    }
+}
+
 impl Default for ImpliedOptions {
     fn default() -> Self {
         ImpliedOptions {
@@ -454,31 +478,32 @@ impl ImpliedReport {
     /// What the run came to: dates run, dates with each flag, dates with a
     /// quote that has no solution.
     pub fn summary(&self) -> RunSummary {
-        let dates_with_flag = Flag::ALL
-            .iter()
-            .map(|&flag| FlagCount {
-                flag,
-                dates: self
-                    .dates
-                    .iter()
-                    .filter(|d| d.tranches.iter().any(|t| t.flags.contains(&flag)))
-                    .count(),
-            })
-            .filter(|c| c.dates > 0)
-            .collect();
-        RunSummary {
-            dates: self.dates.len(),
-            first: self.dates.first().map(|d| d.date.clone()),
-            last: self.dates.last().map(|d| d.date.clone()),
-            dates_with_flag,
-            unsolved_dates: self
+        let mut summary = RunSummary::default();
+        for d in &self.dates {
+            summary.add(d);
+        }
+        summary
+    }
+
+    /// Which optional CSV columns the report has: `model` when a date was
+    /// solved in a pool of n names, the large pool's when a tranche has it.
+    fn csv_columns(&self) -> CsvColumns {
+        CsvColumns {
+            model: self.dates.iter().any(|d| d.model.is_some()),
+            large_pool: self
                 .dates
                 .iter()
-                .filter(|d| d.tranches.iter().any(ImpliedTranche::unsolved))
-                .map(|d| d.date.clone())
-                .collect(),
+                .flat_map(|d| &d.tranches)
+                .any(|t| t.large_pool.is_some()),
         }
     }
+}
+
+/// The optional columns of the CSV (see [`ImpliedReport::csv_columns`]).
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+struct CsvColumns {
+    model: bool,
+    large_pool: bool,
 }
 
 /// How many dates have a flag on at least one tranche.
@@ -490,8 +515,9 @@ pub struct FlagCount {
     pub dates: usize,
 }
 
-/// What a run of `implied` came to ([`ImpliedReport::summary`]).
-#[derive(Debug, Clone, Serialize, PartialEq)]
+/// What a run of `implied` came to ([`ImpliedReport::summary`]), counted
+/// date by date with [`RunSummary::add`] (from `RunSummary::default()`).
+#[derive(Debug, Clone, Default, Serialize, PartialEq)]
 pub struct RunSummary {
     /// Dates run.
     pub dates: usize,
@@ -503,12 +529,42 @@ pub struct RunSummary {
     /// that have it.
     pub dates_with_flag: Vec<FlagCount>,
     /// Dates with a quote that has no solution (they make the exit status 1).
+    pub unsolved: usize,
+    /// The first [`Self::DATES_SHOWN`] of those dates.
     pub unsolved_dates: Vec<String>,
 }
 
 impl RunSummary {
-    /// Most unsolved dates named in [`Self::lines`].
+    /// Most unsolved dates named in [`Self::lines`] (and kept).
     pub const DATES_SHOWN: usize = 10;
+
+    /// Counts one more date of the run (dates come in order).
+    pub fn add(&mut self, d: &ImpliedDate) {
+        self.dates += 1;
+        if self.first.is_none() {
+            self.first = Some(d.date.clone());
+        }
+        self.last = Some(d.date.clone());
+        for flag in Flag::ALL {
+            if !d.tranches.iter().any(|t| t.flags.contains(&flag)) {
+                continue;
+            }
+            match self.dates_with_flag.iter_mut().find(|c| c.flag == flag) {
+                Some(c) => c.dates += 1,
+                None => {
+                    self.dates_with_flag.push(FlagCount { flag, dates: 1 });
+                    let rank = |f: Flag| Flag::ALL.iter().position(|&g| g == f);
+                    self.dates_with_flag.sort_by_key(|c| rank(c.flag));
+                }
+            }
+        }
+        if d.tranches.iter().any(ImpliedTranche::unsolved) {
+            self.unsolved += 1;
+            if self.unsolved_dates.len() < Self::DATES_SHOWN {
+                self.unsolved_dates.push(d.date.clone());
+            }
+        }
+    }
 
     /// The summary in three lines: dates run, dates with each flag, dates
     /// with an unsolved quote (the first [`Self::DATES_SHOWN`] named).
@@ -516,7 +572,8 @@ impl RunSummary {
     /// ```
     /// use skewbook::report::implied::RunSummary;
     /// let s = RunSummary { dates: 2, first: Some("2026-06-01".into()),
-    ///     last: Some("2026-06-02".into()), dates_with_flag: vec![], unsolved_dates: vec![] };
+    ///     last: Some("2026-06-02".into()), dates_with_flag: vec![], unsolved: 0,
+    ///     unsolved_dates: vec![] };
     /// assert_eq!(s.lines(), [
     ///     "2 dates run, 2026-06-01 to 2026-06-02",
     ///     "no flags",
@@ -539,11 +596,12 @@ impl RunSummary {
                 .collect();
             format!("dates with each flag: {}", each.join(", "))
         };
-        let n = self.unsolved_dates.len();
+        let n = self.unsolved;
         let unsolved = if n == 0 {
             "every quote of every date has a solution".to_string()
         } else {
-            let shown = self.unsolved_dates[..n.min(Self::DATES_SHOWN)].join(", ");
+            let shown =
+                self.unsolved_dates[..self.unsolved_dates.len().min(Self::DATES_SHOWN)].join(", ");
             let more = if n > Self::DATES_SHOWN {
                 format!(" and {} more", n - Self::DATES_SHOWN)
             } else {
@@ -604,32 +662,37 @@ pub fn build_with_progress(
     implied: &ImpliedOptions,
     done: &(dyn Fn() + Sync),
 ) -> Result<ImpliedReport> {
-    let tol = implied.index_tolerance_bp;
-    if !(tol.is_finite() && tol >= 0.0) {
-        return Err(crate::Error::msg(
-            crate::ErrorKind::Usage,
-            format!(
-                "--index-tolerance: expected a number of bp of 0 or more, found {}",
-                significant(tol, 6)
-            ),
-        ));
-    }
+    implied.check()?;
+    let dates = build_dates(&snapshot.dates, &snapshot.path, opts, implied, done)?;
+    Ok(ImpliedReport { dates })
+}
+
+/// The report of `dates` (of the file `path`), in parallel, calling `done`
+/// as each is finished.
+///
+/// # Errors
+/// Curve errors of any date, all of them together; else the first date's
+/// pricing error.
+fn build_dates(
+    dates: &[MarketDate],
+    path: &str,
+    opts: &MarketOptions,
+    implied: &ImpliedOptions,
+    done: &(dyn Fn() + Sync),
+) -> Result<Vec<ImpliedDate>> {
     // Each date on its own: bootstrap, then every compound root and the
     // base chain. A curve error is kept apart from a pricing error so that
     // the errors come out as they did date by date: every curve error first.
-    let per_date: Vec<Result<Result<ImpliedDate>>> = snapshot
-        .dates
+    let per_date: Vec<Result<Result<ImpliedDate>>> = dates
         .par_iter()
         .map(|md| {
-            let out = Pool::build(md, opts, &snapshot.path)
-                .map(|pool| implied_in_model(md, pool, implied));
+            let out = Pool::build(md, opts, path).map(|pool| implied_in_model(md, pool, implied));
             done();
             out
         })
         .collect();
     let priced = collect_all(per_date)?;
-    let dates = priced.into_iter().collect::<Result<Vec<_>>>()?;
-    Ok(ImpliedReport { dates })
+    priced.into_iter().collect()
 }
 
 /// One date in the options' pool model, with the large pool beside it
@@ -762,78 +825,78 @@ impl Report for ImpliedReport {
     }
 
     fn csv(&self) -> Table {
-        let mut headers = vec!["date", "recovery_pct"];
-        headers.extend(QuotedTranche::CSV_HEADERS);
-        headers.extend([
-            "compound_root_count",
-            "compound_correlation_1",
-            "compound_correlation_2",
-            "compound_range_low",
-            "compound_range_high",
-            "base_correlation",
-            "base_reprice_error",
-            "expected_loss_pct",
-            "flags",
-            "base_note",
-            "compound_note",
-            "check_note",
-            "index_gap_bp",
-        ]);
-        let with_model = self.dates.iter().any(|d| d.model.is_some());
-        let compare = self
-            .dates
-            .iter()
-            .flat_map(|d| &d.tranches)
-            .any(|t| t.large_pool.is_some());
-        if with_model {
-            headers.push("model");
-        }
-        if compare {
-            headers.extend([
-                "large_pool_compound_correlation_1",
-                "large_pool_compound_correlation_2",
-                "large_pool_base_correlation",
-            ]);
-        }
-        let mut t = Table::new(&headers);
-        for d in &self.dates {
-            for r in &d.tranches {
-                let mut row = vec![d.date.clone(), csv_num(Some(pct(d.recovery)))];
-                row.extend(r.tranche.csv_cells());
-                row.extend([
-                    r.compound_correlation.len().to_string(),
-                    csv_num(r.compound_correlation.first().copied()),
-                    csv_num(r.compound_correlation.get(1).copied()),
-                    csv_num(r.compound_range.map(|r| r[0])),
-                    csv_num(r.compound_range.map(|r| r[1])),
-                    csv_num(r.base_correlation),
-                    csv_num(r.base_reprice_error),
-                    csv_num(r.expected_loss_pct),
-                    crate::flags::join(&r.flags, false),
-                    r.base_note.clone().unwrap_or_default(),
-                    r.compound_note.clone().unwrap_or_default(),
-                    r.check_note.clone().unwrap_or_default(),
-                    csv_num(
-                        d.index_check
-                            .iter()
-                            .find(|c| c.maturity == r.tranche.maturity)
-                            .map(|c| c.gap_bp),
-                    ),
-                ]);
-                if with_model {
-                    row.push(d.model.clone().unwrap_or_default());
-                }
-                if compare {
-                    let l = r.large_pool.as_ref();
-                    row.extend([
-                        csv_num(l.and_then(|l| l.compound_correlation.first().copied())),
-                        csv_num(l.and_then(|l| l.compound_correlation.get(1).copied())),
-                        csv_num(l.and_then(|l| l.base_correlation)),
-                    ]);
-                }
-                t.push(row);
-            }
-        }
-        t
+        csv_table(&self.dates, self.csv_columns())
     }
+}
+
+/// The CSV of `dates` with the optional columns `columns`.
+fn csv_table(dates: &[ImpliedDate], columns: CsvColumns) -> Table {
+    let mut headers = vec!["date", "recovery_pct"];
+    headers.extend(QuotedTranche::CSV_HEADERS);
+    headers.extend([
+        "compound_root_count",
+        "compound_correlation_1",
+        "compound_correlation_2",
+        "compound_range_low",
+        "compound_range_high",
+        "base_correlation",
+        "base_reprice_error",
+        "expected_loss_pct",
+        "flags",
+        "base_note",
+        "compound_note",
+        "check_note",
+        "index_gap_bp",
+    ]);
+    let (with_model, compare) = (columns.model, columns.large_pool);
+    if with_model {
+        headers.push("model");
+    }
+    if compare {
+        headers.extend([
+            "large_pool_compound_correlation_1",
+            "large_pool_compound_correlation_2",
+            "large_pool_base_correlation",
+        ]);
+    }
+    let mut t = Table::new(&headers);
+    for d in dates {
+        for r in &d.tranches {
+            let mut row = vec![d.date.clone(), csv_num(Some(pct(d.recovery)))];
+            row.extend(r.tranche.csv_cells());
+            row.extend([
+                r.compound_correlation.len().to_string(),
+                csv_num(r.compound_correlation.first().copied()),
+                csv_num(r.compound_correlation.get(1).copied()),
+                csv_num(r.compound_range.map(|r| r[0])),
+                csv_num(r.compound_range.map(|r| r[1])),
+                csv_num(r.base_correlation),
+                csv_num(r.base_reprice_error),
+                csv_num(r.expected_loss_pct),
+                crate::flags::join(&r.flags, false),
+                r.base_note.clone().unwrap_or_default(),
+                r.compound_note.clone().unwrap_or_default(),
+                r.check_note.clone().unwrap_or_default(),
+                csv_num(
+                    d.index_check
+                        .iter()
+                        .find(|c| c.maturity == r.tranche.maturity)
+                        .map(|c| c.gap_bp),
+                ),
+            ]);
+            if with_model {
+                row.push(d.model.clone().unwrap_or_default());
+            }
+            if compare {
+                let l = r.large_pool.as_ref();
+                row.extend([
+                    csv_num(l.and_then(|l| l.compound_correlation.first().copied())),
+                    csv_num(l.and_then(|l| l.compound_correlation.get(1).copied())),
+                    csv_num(l.and_then(|l| l.base_correlation)),
+                ]);
+            }
+            t.push(row);
+        }
+    }
+    t
 }

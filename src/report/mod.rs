@@ -12,6 +12,7 @@ pub mod loss;
 pub mod price;
 pub mod realworld;
 pub mod skew_history;
+pub mod stream;
 pub mod surface;
 pub mod value;
 
@@ -48,6 +49,29 @@ impl DateFilter {
             && self.to.is_none_or(|x| d <= x)
     }
 
+    /// Checks that `from` is not after `to`.
+    ///
+    /// # Errors
+    /// [`crate::ErrorKind::Usage`] when it is.
+    fn check(&self) -> Result<()> {
+        match (self.from, self.to) {
+            (Some(f), Some(t)) if f > t => Err(Error::msg(
+                crate::ErrorKind::Usage,
+                format!("--from {f} --to {t}: expected --from on or before --to"),
+            )),
+            _ => Ok(()),
+        }
+    }
+
+    /// The error of a file `path` with the dates `span` none of which the
+    /// filter keeps.
+    fn none_kept(&self, path: &str, span: &str) -> Error {
+        Error::msg(
+            crate::ErrorKind::Usage,
+            format!("{} in {path} (it has {span})", self.describe()),
+        )
+    }
+
     fn describe(&self) -> String {
         match (self.date, self.from, self.to) {
             (Some(d), _, _) => format!("--date {d}: no quotes on that date"),
@@ -81,14 +105,7 @@ pub fn filter_dates(snapshot: &Snapshot, filter: &DateFilter) -> Result<Snapshot
     if filter.is_all() {
         return Ok(snapshot.clone());
     }
-    if let (Some(f), Some(t)) = (filter.from, filter.to) {
-        if f > t {
-            return Err(Error::msg(
-                crate::ErrorKind::Usage,
-                format!("--from {f} --to {t}: expected --from on or before --to"),
-            ));
-        }
-    }
+    filter.check()?;
     let dates: Vec<MarketDate> = snapshot
         .dates
         .iter()
@@ -96,15 +113,7 @@ pub fn filter_dates(snapshot: &Snapshot, filter: &DateFilter) -> Result<Snapshot
         .cloned()
         .collect();
     if dates.is_empty() {
-        return Err(Error::msg(
-            crate::ErrorKind::Usage,
-            format!(
-                "{} in {} (it has {})",
-                filter.describe(),
-                snapshot.path,
-                date_span(snapshot)
-            ),
-        ));
+        return Err(filter.none_kept(&snapshot.path, &date_span(snapshot)));
     }
     let lines: std::collections::HashSet<u64> = dates
         .iter()

@@ -3,7 +3,8 @@
 //! Exit status: 0 all good; 1 it ran but some quotes have no solution (their
 //! rows are printed and flagged); 2 bad input or usage, or a report that
 //! failed the output guard (a number that is not finite: a bug, named on
-//! standard error, nothing printed).
+//! standard error; nothing printed, or for a history printed a chunk of
+//! dates at a time, nothing from that chunk on).
 //!
 //! # A broken pipe is success
 //! When the reader of standard output goes away (`skewbook implied x.csv |
@@ -119,8 +120,8 @@ fn main() -> ExitCode {
         }
         Err(Failure::NotFinite(n)) => {
             eprintln!(
-                "error: output guard: {n}; nothing was printed (this is a bug in skewbook: \
-                 please report it with the command and its input)"
+                "error: output guard: {n}; the output stops before it (this is a bug in \
+                 skewbook: please report it with the command and its input)"
             );
             ExitCode::from(2)
         }
