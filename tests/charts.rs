@@ -2,7 +2,7 @@
 //! random (seeded) from the bundled history; the drawn SVG against its
 //! data; the picture of "no root"; the skew history across a broken chain.
 
-use crate::common::{skewbook, write_temp};
+use crate::common::{json_of, number, of_date, repo, skewbook, write_temp};
 use rand::{Rng, SeedableRng};
 use rand_chacha::ChaCha8Rng;
 use serde_json::Value;
@@ -14,31 +14,6 @@ use skewbook::math::interp::Interp;
 
 const HISTORY: &str = "market-samples/hgx-history-2026-06.csv";
 const HGX: &str = "market-samples/hgx-2026-06-18.csv";
-
-fn repo(path: &str) -> String {
-    format!("{}/{path}", env!("CARGO_MANIFEST_DIR"))
-}
-
-/// `skewbook ARGS --format json`, which must exit 0.
-fn json(args: &[&str]) -> Value {
-    let mut all = args.to_vec();
-    all.extend(["--format", "json"]);
-    let (code, out, err) = skewbook(&all);
-    assert_eq!(code, 0, "{args:?}: {err}");
-    serde_json::from_str(&out).expect("JSON output")
-}
-
-fn f(v: &Value) -> f64 {
-    v.as_f64()
-        .unwrap_or_else(|| panic!("expected a number, found {v}"))
-}
-
-fn of_date<'a>(report: &'a Value, date: &str) -> &'a Value {
-    report
-        .as_array()
-        .and_then(|a| a.iter().find(|d| d["date"] == date))
-        .unwrap_or_else(|| panic!("date {date} missing"))
-}
 
 fn inputs<'a>(
     snapshot: &'a Snapshot,
@@ -68,10 +43,10 @@ fn inputs<'a>(
 fn chart_data_matches_implied_and_surface_on_random_dates() {
     let snapshot = read_snapshot(&repo(HISTORY)).expect("history");
     let options = MarketOptions::default();
-    let implied = json(&["implied", HISTORY]);
+    let implied = json_of(&["implied", HISTORY]);
     let surfaces: Vec<(Interp, Value)> = SKEW_INTERPOLATIONS
         .iter()
-        .map(|&i| (i, json(&["surface", HISTORY, "--interp", i.name()])))
+        .map(|&i| (i, json_of(&["surface", HISTORY, "--interp", i.name()])))
         .collect();
     let at = [0.05, 0.10];
     let history = Charts::build(&inputs(&snapshot, &options, None, Some(&snapshot), &at))
@@ -100,7 +75,12 @@ fn chart_data_matches_implied_and_surface_on_random_dates() {
             let want: Vec<(f64, f64)> = tranches
                 .iter()
                 .filter(|t| t["maturity"] == m.as_str() && !t["base_correlation"].is_null())
-                .map(|t| (f(&t["detach_pct"]) / 100.0, f(&t["base_correlation"])))
+                .map(|t| {
+                    (
+                        number(&t["detach_pct"]) / 100.0,
+                        number(&t["base_correlation"]),
+                    )
+                })
                 .collect();
             assert_eq!(c.knots.len(), want.len(), "{ds} {m}");
             for (k, (d, r)) in c.knots.iter().zip(&want) {
@@ -114,7 +94,7 @@ fn chart_data_matches_implied_and_surface_on_random_dates() {
                     .expect("surface maturity");
                 let mut matched = 0;
                 for g in sm["grid"].as_array().expect("grid") {
-                    let k = f(&g["k_pct"]) / 100.0;
+                    let k = number(&g["k_pct"]) / 100.0;
                     if g["base_correlation"].is_null() || k > c.k_max {
                         continue;
                     }
@@ -123,7 +103,7 @@ fn chart_data_matches_implied_and_surface_on_random_dates() {
                         .iter()
                         .find(|p| (p.0 - k).abs() < 1e-12)
                         .unwrap_or_else(|| panic!("{ds} {m} {interp}: no point at {k}"));
-                    assert!((p.1 - f(&g["base_correlation"])).abs() < 1e-14);
+                    assert!((p.1 - number(&g["base_correlation"])).abs() < 1e-14);
                     matched += 1;
                 }
                 assert!(
@@ -144,16 +124,16 @@ fn chart_data_matches_implied_and_surface_on_random_dates() {
                 .iter()
                 .find(|c| {
                     c.maturity.to_string() == t["maturity"].as_str().unwrap_or("")
-                        && (c.attach * 100.0 - f(&t["attach_pct"])).abs() < 1e-9
-                        && (c.detach * 100.0 - f(&t["detach_pct"])).abs() < 1e-9
+                        && (c.attach * 100.0 - number(&t["attach_pct"])).abs() < 1e-9
+                        && (c.detach * 100.0 - number(&t["detach_pct"])).abs() < 1e-9
                 })
                 .expect("a curve per tranche");
-            assert!((c.quote - f(&t["quote"])).abs() < 1e-12);
+            assert!((c.quote - number(&t["quote"])).abs() < 1e-12);
             let roots: Vec<f64> = t["compound_correlation"]
                 .as_array()
                 .expect("roots")
                 .iter()
-                .map(f)
+                .map(number)
                 .collect();
             assert_eq!(c.roots.len(), roots.len(), "{ds}");
             for (got, want) in c.roots.iter().zip(&roots) {
@@ -185,12 +165,12 @@ fn chart_data_matches_implied_and_surface_on_random_dates() {
                     .as_array()
                     .and_then(|a| a.iter().find(|x| x["maturity"] == m.as_str()))
                     .expect("surface maturity");
-                assert!((chart.protection_end_pd - f(&sm["protection_end_pd"])).abs() < 1e-15);
+                assert!((chart.protection_end_pd - number(&sm["protection_end_pd"])).abs() < 1e-15);
                 let grid = sm["grid"].as_array().expect("grid");
                 assert_eq!(curve.tranchelets.len() + 1, grid.len());
                 for (t, g) in curve.tranchelets.iter().zip(grid) {
-                    assert!((t.k_from - f(&g["k_pct"]) / 100.0).abs() < 1e-12);
-                    assert!((t.loss - f(&g["tranchelet_loss"])).abs() < 1e-15);
+                    assert!((t.k_from - number(&g["k_pct"]) / 100.0).abs() < 1e-12);
+                    assert!((t.loss - number(&g["tranchelet_loss"])).abs() < 1e-15);
                 }
             }
         }
@@ -217,16 +197,16 @@ fn chart_data_matches_implied_and_surface_on_random_dates() {
             let want = if s.quoted {
                 tranches
                     .iter()
-                    .find(|t| (f(&t["detach_pct"]) / 100.0 - s.detach).abs() < 1e-12)
-                    .map(|t| f(&t["base_correlation"]))
+                    .find(|t| (number(&t["detach_pct"]) / 100.0 - s.detach).abs() < 1e-12)
+                    .map(|t| number(&t["base_correlation"]))
             } else {
                 sm["grid"]
                     .as_array()
                     .and_then(|g| {
                         g.iter()
-                            .find(|g| (f(&g["k_pct"]) / 100.0 - s.detach).abs() < 1e-12)
+                            .find(|g| (number(&g["k_pct"]) / 100.0 - s.detach).abs() < 1e-12)
                     })
-                    .map(|g| f(&g["base_correlation"]))
+                    .map(|g| number(&g["base_correlation"]))
             };
             let (got, want) = (p.rho.expect("a value"), want.expect("a reference"));
             assert!(

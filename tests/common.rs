@@ -27,3 +27,31 @@ pub fn write_temp(name: &str, contents: impl AsRef<[u8]>) -> String {
     std::fs::write(&path, contents).expect("scratch file");
     path.to_string_lossy().into_owned()
 }
+
+/// `path` under the repository root.
+pub fn repo(path: &str) -> String {
+    format!("{}/{path}", env!("CARGO_MANIFEST_DIR"))
+}
+
+/// `skewbook ARGS --format json`, which must exit 0, parsed.
+pub fn json_of(args: &[&str]) -> serde_json::Value {
+    let mut all = args.to_vec();
+    all.extend(["--format", "json"]);
+    let (code, out, err) = skewbook(&all);
+    assert_eq!(code, 0, "{args:?}: {err}");
+    serde_json::from_str(&out).expect("JSON output")
+}
+
+/// A JSON number, which must be one.
+pub fn number(v: &serde_json::Value) -> f64 {
+    v.as_f64()
+        .unwrap_or_else(|| panic!("expected a number, found {v}"))
+}
+
+/// The object of a dated JSON array whose `date` is `date`.
+pub fn of_date<'a>(report: &'a serde_json::Value, date: &str) -> &'a serde_json::Value {
+    report
+        .as_array()
+        .and_then(|a| a.iter().find(|d| d["date"] == date))
+        .unwrap_or_else(|| panic!("date {date} missing"))
+}

@@ -4,7 +4,7 @@
 //! library pricing the quotes back in a pool of 125 names), the large
 //! pool's numbers are not, and every output names the pool.
 
-use crate::common::skewbook;
+use crate::common::{json_of, number, of_date, repo, skewbook};
 use rand::{Rng, SeedableRng};
 use rand_chacha::ChaCha8Rng;
 use serde_json::Value;
@@ -20,38 +20,16 @@ const HISTORY: &str = "market-samples/hgx-history-2026-06.csv";
 const HGX: &str = "market-samples/hgx-2026-06-18.csv";
 const NAMES: PoolModel = PoolModel::Names(125);
 
-fn repo(path: &str) -> String {
-    format!("{}/{path}", env!("CARGO_MANIFEST_DIR"))
-}
-
-/// `skewbook ARGS --format json`, which must exit 0.
-fn json(args: &[&str]) -> Value {
-    let mut all = args.to_vec();
-    all.extend(["--format", "json"]);
-    let (code, out, err) = skewbook(&all);
-    assert_eq!(code, 0, "{args:?}: {err}");
-    serde_json::from_str(&out).expect("JSON output")
-}
-
-fn f(v: &Value) -> f64 {
-    v.as_f64()
-        .unwrap_or_else(|| panic!("expected a number, found {v}"))
-}
-
-fn of_date<'a>(report: &'a Value, date: &str) -> &'a Value {
-    report
-        .as_array()
-        .and_then(|a| a.iter().find(|d| d["date"] == date))
-        .unwrap_or_else(|| panic!("date {date} missing"))
-}
-
 /// The grid point of `surface` JSON at maturity `m`, detachment `k_pct`.
 fn surface_point<'a>(surface: &'a Value, date: &str, m: &str, k_pct: f64) -> &'a Value {
     of_date(surface, date)["maturities"]
         .as_array()
         .and_then(|a| a.iter().find(|x| x["maturity"] == m))
         .and_then(|sm| sm["grid"].as_array())
-        .and_then(|g| g.iter().find(|g| (f(&g["k_pct"]) - k_pct).abs() < 1e-9))
+        .and_then(|g| {
+            g.iter()
+                .find(|g| (number(&g["k_pct"]) - k_pct).abs() < 1e-9)
+        })
         .unwrap_or_else(|| panic!("{date} {m}: no grid point at {k_pct}%"))
 }
 
@@ -114,10 +92,10 @@ fn repricing_gap(
 /// every base correlation differs from the large-pool `skew-history`.
 #[test]
 fn skew_history_in_125_names_is_the_finite_pool_skew_on_random_dates() {
-    let names = json(&["skew-history", HISTORY, "--names", "125", "--at", "5,10"]);
-    let large = json(&["skew-history", HISTORY, "--at", "5,10"]);
-    let implied = json(&["implied", HISTORY, "--names", "125"]);
-    let surface = json(&["surface", HISTORY, "--names", "125"]);
+    let names = json_of(&["skew-history", HISTORY, "--names", "125", "--at", "5,10"]);
+    let large = json_of(&["skew-history", HISTORY, "--at", "5,10"]);
+    let implied = json_of(&["implied", HISTORY, "--names", "125"]);
+    let surface = json_of(&["surface", HISTORY, "--names", "125"]);
     let snapshot = read_snapshot(&repo(HISTORY)).expect("history");
     let obs = names.as_array().expect("observations");
     let large_obs = large.as_array().expect("observations");
@@ -137,18 +115,18 @@ fn skew_history_in_125_names_is_the_finite_pool_skew_on_random_dates() {
             .expect("tranches");
         for (o, l) in &today {
             let m = o["maturity"].as_str().expect("maturity");
-            let detach = f(&o["detach_pct"]);
+            let detach = number(&o["detach_pct"]);
             let tranche = |attach: Option<f64>| {
                 tranches.iter().find(|t| {
                     t["maturity"] == m
-                        && (f(&t["detach_pct"]) - detach).abs() < 1e-9
-                        && attach.is_none_or(|a| (f(&t["attach_pct"]) - a).abs() < 1e-9)
+                        && (number(&t["detach_pct"]) - detach).abs() < 1e-9
+                        && attach.is_none_or(|a| (number(&t["attach_pct"]) - a).abs() < 1e-9)
                 })
             };
             let want = match o["series"].as_str().expect("series") {
                 "base" => tranche(None).expect("tranche")["base_correlation"].clone(),
                 "compound" => {
-                    let t = tranche(Some(f(&o["attach_pct"]))).expect("tranche");
+                    let t = tranche(Some(number(&o["attach_pct"]))).expect("tranche");
                     let root = o["root"].as_u64().expect("root") as usize;
                     t["compound_correlation"][root - 1].clone()
                 }
@@ -161,7 +139,7 @@ fn skew_history_in_125_names_is_the_finite_pool_skew_on_random_dates() {
                 (got, want) => assert_eq!(got, want, "{ds} {o}"),
             }
             if o["series"] == "base" {
-                let (n, l) = (f(&o["value"]), f(&l["value"]));
+                let (n, l) = (number(&o["value"]), number(&l["value"]));
                 assert!((n - l).abs() > 1e-4, "{ds} {o}: the same as the large pool");
             }
         }
@@ -175,7 +153,7 @@ fn skew_history_in_125_names_is_the_finite_pool_skew_on_random_dates() {
                             o["date"] == ds.as_str()
                                 && o["maturity"] == m
                                 && o["series"] == "base"
-                                && (f(&o["detach_pct"]) - k_pct).abs() < 1e-9
+                                && (number(&o["detach_pct"]) - k_pct).abs() < 1e-9
                         })
                         .and_then(|o| o["value"].as_f64())
                 })
@@ -244,11 +222,11 @@ fn inputs<'a>(
 fn charts_in_125_names_draw_the_finite_pool() {
     let snapshot = read_snapshot(&repo(HISTORY)).expect("history");
     let options = MarketOptions::default();
-    let implied = json(&["implied", HISTORY, "--names", "125"]);
+    let implied = json_of(&["implied", HISTORY, "--names", "125"]);
     let surfaces: Vec<(Interp, Value)> = [Interp::Linear, Interp::Pchip]
         .into_iter()
         .map(|i| {
-            let s = json(&["surface", HISTORY, "--names", "125", "--interp", i.name()]);
+            let s = json_of(&["surface", HISTORY, "--names", "125", "--interp", i.name()]);
             (i, s)
         })
         .collect();
@@ -276,7 +254,12 @@ fn charts_in_125_names_draw_the_finite_pool() {
             let want: Vec<(f64, f64)> = tranches
                 .iter()
                 .filter(|t| t["maturity"] == m.as_str() && !t["base_correlation"].is_null())
-                .map(|t| (f(&t["detach_pct"]) / 100.0, f(&t["base_correlation"])))
+                .map(|t| {
+                    (
+                        number(&t["detach_pct"]) / 100.0,
+                        number(&t["base_correlation"]),
+                    )
+                })
                 .collect();
             assert_eq!(c.knots.len(), want.len(), "{ds} {m}");
             for (k, (d, r)) in c.knots.iter().zip(&want) {
@@ -302,15 +285,15 @@ fn charts_in_125_names_draw_the_finite_pool() {
                 .iter()
                 .find(|t| {
                     t["maturity"] == c.maturity.to_string().as_str()
-                        && (f(&t["attach_pct"]) - c.attach * 100.0).abs() < 1e-9
-                        && (f(&t["detach_pct"]) - c.detach * 100.0).abs() < 1e-9
+                        && (number(&t["attach_pct"]) - c.attach * 100.0).abs() < 1e-9
+                        && (number(&t["detach_pct"]) - c.detach * 100.0).abs() < 1e-9
                 })
                 .expect("a tranche per curve");
             let roots: Vec<f64> = t["compound_correlation"]
                 .as_array()
                 .expect("roots")
                 .iter()
-                .map(f)
+                .map(number)
                 .collect();
             assert_eq!(c.roots.len(), roots.len(), "{ds}");
             for (got, want) in c.roots.iter().zip(&roots) {
@@ -353,7 +336,7 @@ fn charts_in_125_names_draw_the_finite_pool() {
                 for t in &curve.tranchelets {
                     let g = surface_point(surface, &ds, &m, t.k_from * 100.0);
                     assert!(
-                        (t.loss - f(&g["tranchelet_loss"])).abs() < 1e-15,
+                        (t.loss - number(&g["tranchelet_loss"])).abs() < 1e-15,
                         "{ds} {m}"
                     );
                 }
@@ -368,8 +351,8 @@ fn charts_in_125_names_draw_the_finite_pool() {
             let want = if s.quoted {
                 tranches
                     .iter()
-                    .find(|t| (f(&t["detach_pct"]) / 100.0 - s.detach).abs() < 1e-12)
-                    .map(|t| f(&t["base_correlation"]))
+                    .find(|t| (number(&t["detach_pct"]) / 100.0 - s.detach).abs() < 1e-12)
+                    .map(|t| number(&t["base_correlation"]))
             } else {
                 surface_point(&surfaces[0].1, &ds, &m, s.detach * 100.0)["base_correlation"]
                     .as_f64()
@@ -449,14 +432,14 @@ fn report_page_in_125_names_names_the_pool() {
     assert!(titles >= 7, "{titles} charts");
     assert_eq!(page.matches(", pool of 125 names</title>").count(), titles);
 
-    let implied = json(&["implied", HGX, "--names", "125"]);
+    let implied = json_of(&["implied", HGX, "--names", "125"]);
     let mut differ = 0;
     for t in implied[0]["tranches"].as_array().expect("tranches") {
         let id = format!(
             "tranche-{}-{}-{}",
             t["maturity"].as_str().expect("maturity"),
-            f(&t["attach_pct"]),
-            f(&t["detach_pct"])
+            number(&t["attach_pct"]),
+            number(&t["detach_pct"])
         );
         let (row, plain_row) = (cells(&page, &id), cells(&plain, &id));
         let want = t["base_correlation"]
