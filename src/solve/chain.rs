@@ -12,6 +12,7 @@ use crate::error::Result;
 use crate::flags::Flag;
 use crate::loss::{Correlation, PoolModel};
 use crate::market::{tiles_from_zero, MarketDate, TrancheQuote};
+use crate::math::root::Solution;
 use crate::tranche::{BaseLegs, Tranche, TrancheLegs, TrancheSchedule, TrancheValuer};
 use chrono::NaiveDate;
 
@@ -319,7 +320,13 @@ pub fn implied_maturity(
                 Some(reprice(&lower, &v.upper_legs(rho_a))),
             ),
             Some((rho_a, lower)) => {
-                let (solved, upper) = base_correlation_with_legs(&v, &lower, upper_scan);
+                let (solved, upper) = match equity_root(&comp, &v, &flat) {
+                    // [0, D]: the base solve is the compound solve.
+                    Some(root) if t.attach == 0.0 => {
+                        (BaseSolve::Solved(root), Some(v.upper_legs(root.value)))
+                    }
+                    _ => base_correlation_with_legs(&v, &lower, upper_scan),
+                };
                 let outcome = match solved {
                     BaseSolve::Solved(s) => BaseOutcome::Solved {
                         rho_attach: rho_a,
@@ -381,6 +388,22 @@ pub fn implied_maturity(
 /// The quote's premiums on these legs, per unit tranche notional.
 fn premium(v: &TrancheValuer, legs: &TrancheLegs) -> f64 {
     v.running() * legs.annuity + v.upfront() * v.schedule.df_settlement()
+}
+
+/// An equity tranche's base correlation is its compound correlation: with
+/// nothing below it, the base solve's function is the compound solve's.
+/// The compound root serves when it is the root the base solve would
+/// take, the one in the first sign change of the scan (`flat`, the
+/// tranche's legs at each scan correlation), found without failures.
+fn equity_root(c: &CompoundSolve, v: &TrancheValuer, flat: &[TrancheLegs]) -> Option<Solution> {
+    let root = *c.roots.first()?;
+    if c.failures > 0 || c.tangent {
+        return None;
+    }
+    let grid = scan_grid();
+    let values: Vec<f64> = flat.iter().map(|l| v.value(l)).collect();
+    let i = values.windows(2).position(|w| w[0] * w[1] <= 0.0)?;
+    (grid[i] <= root.value && root.value <= grid[i + 1]).then_some(root)
 }
 
 /// [0, 100%]: no correlation moves it; its one model quote and loss.
