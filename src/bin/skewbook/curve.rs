@@ -27,10 +27,29 @@ pub fn load_snapshot(m: &MarketArgs) -> Result<Snapshot, Failure> {
     Ok(snapshot)
 }
 
-/// The first pass over a history in a regular file, dates in ascending
-/// blocks (`skewbook::report::stream`), with its warnings printed; `None`
-/// for a file to read whole with [`load_snapshot`].
+/// Files smaller than this (bytes) are read whole: one read and one
+/// bootstrap a date, and memory bounded by what a file of this size takes
+/// (about 80 MB). `SKEWBOOK_STREAM_FROM_BYTES` sets another size (0
+/// streams every history in date blocks).
+pub const STREAM_FROM_BYTES: u64 = 4 << 20;
+
+/// Whether `path` is large enough to read in two passes.
+fn large_enough(path: &str) -> bool {
+    let from = std::env::var("SKEWBOOK_STREAM_FROM_BYTES")
+        .ok()
+        .and_then(|v| v.parse().ok())
+        .unwrap_or(STREAM_FROM_BYTES);
+    std::fs::metadata(path).is_ok_and(|m| m.len() >= from)
+}
+
+/// The first pass over a history in a regular file of at least
+/// [`STREAM_FROM_BYTES`], dates in ascending blocks
+/// (`skewbook::report::stream`), with its warnings printed; `None` for a
+/// file to read whole with [`load_snapshot`].
 pub fn plan(m: &MarketArgs, opts: &MarketOptions) -> Result<Option<HistoryPlan>, Failure> {
+    if !large_enough(&m.file) {
+        return Ok(None);
+    }
     let plan = skewbook::report::stream::plan(&m.file, &m.dates.filter(), opts)?;
     if let Some(p) = &plan {
         for line in p.warnings().lines() {
