@@ -745,15 +745,9 @@ fn tiling_warnings(
     tranches: &[TrancheQuote],
     warnings: &mut Vec<Problem>,
 ) {
-    let mut start = 0;
-    while start < tranches.len() {
-        let maturity = tranches[start].maturity;
-        let end = start
-            + tranches[start..]
-                .iter()
-                .take_while(|t| t.maturity == maturity)
-                .count();
-        let group: Vec<&TrancheQuote> = tranches[start..end].iter().collect();
+    for same in tranches.chunk_by(|a, b| a.maturity == b.maturity) {
+        let maturity = same[0].maturity;
+        let group: Vec<&TrancheQuote> = same.iter().collect();
         if !tiles_from_zero(&group) {
             let mut next = 0.0;
             let mut below: Option<u64> = None;
@@ -784,6 +778,5 @@ fn tiling_warnings(
                 below = Some(t.line);
             }
         }
-        start = end;
     }
 }

@@ -763,14 +763,11 @@ impl Report for ImpliedReport {
                 }],
             };
             out.extend(curve.sections());
-            let mut i = 0;
-            while i < d.tranches.len() {
-                let m = d.tranches[i].tranche.maturity.clone();
-                let group: Vec<&ImpliedTranche> = d.tranches[i..]
-                    .iter()
-                    .take_while(|t| t.tranche.maturity == m)
-                    .collect();
-                i += group.len();
+            for group in d
+                .tranches
+                .chunk_by(|a, b| a.tranche.maturity == b.tranche.maturity)
+            {
+                let m = &group[0].tranche.maturity;
                 let compare = group.iter().any(|r| r.large_pool.is_some());
                 let mut headers = vec!["tranche", "quote", "compound%", "base%"];
                 if compare {
@@ -815,7 +812,7 @@ impl Report for ImpliedReport {
                         t.notes.extend(wrap(&format!("{label}: {n}"), 79, 4));
                     }
                 }
-                if let Some(c) = d.index_check.iter().find(|c| c.maturity == m) {
+                if let Some(c) = d.index_check.iter().find(|c| &c.maturity == m) {
                     t.notes.extend(wrap(&index_check_text(c), 79, 4));
                 }
                 out.push(t);

@@ -214,15 +214,9 @@ pub fn implied_date(md: &MarketDate, pool: Pool) -> Result<DateImplied> {
 /// As [`implied_date`].
 pub fn implied_date_with(md: &MarketDate, pool: Pool, model: PoolModel) -> Result<DateImplied> {
     let mut maturities = Vec::new();
-    let mut i = 0;
-    while i < md.tranches.len() {
-        let m = md.tranches[i].maturity;
-        let group: Vec<&TrancheQuote> = md.tranches[i..]
-            .iter()
-            .take_while(|t| t.maturity == m)
-            .collect();
-        i += group.len();
-        let schedule = TrancheSchedule::for_pool_with(&pool, m, model)?;
+    for same in md.tranches.chunk_by(|a, b| a.maturity == b.maturity) {
+        let group: Vec<&TrancheQuote> = same.iter().collect();
+        let schedule = TrancheSchedule::for_pool_with(&pool, same[0].maturity, model)?;
         maturities.push(implied_maturity(&schedule, &group)?);
     }
     Ok(DateImplied { pool, maturities })

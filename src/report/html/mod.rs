@@ -245,7 +245,7 @@ fn quote_text(kind: &str, quote: f64, coupon_bp: Option<f64>) -> String {
     }
 }
 
-fn implied_table(h: &mut Html, maturity: &str, rows: &[&ImpliedTranche]) {
+fn implied_table(h: &mut Html, maturity: &str, rows: &[ImpliedTranche]) {
     let list = |xs: &[f64]| {
         if xs.is_empty() {
             "none".to_string()
@@ -747,15 +747,11 @@ pub fn page(charts: &Charts) -> Result<String> {
         &[],
         &format!("Compound correlation: every flat correlation at which the model reprices the tranche's quote{in_pool}. Base correlation: the correlation of the base tranche [0, detachment]{in_pool}, bootstrapped from the bottom. The charts mark the solved base correlations (knots) and draw the skew between them by each interpolation."),
     );
-    let mut i = 0;
-    while i < d.tranches.len() {
-        let m = d.tranches[i].tranche.maturity.clone();
-        let group: Vec<&ImpliedTranche> = d.tranches[i..]
-            .iter()
-            .take_while(|t| t.tranche.maturity == m)
-            .collect();
-        i += group.len();
-        implied_table(&mut h, &m, &group);
+    for group in d
+        .tranches
+        .chunk_by(|a, b| a.tranche.maturity == b.tranche.maturity)
+    {
+        implied_table(&mut h, &group[0].tranche.maturity, group);
     }
     let skew_svgs: Vec<&str> = charts
         .skews
