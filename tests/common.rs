@@ -6,8 +6,14 @@ use std::process::Command;
 
 /// Runs `skewbook ARGS` from the repository root: (exit code, stdout, stderr).
 pub fn skewbook(args: &[&str]) -> (i32, String, String) {
+    skewbook_with_env(args, &[])
+}
+
+/// [`skewbook`] with environment variables `vars` set.
+pub fn skewbook_with_env(args: &[&str], vars: &[(&str, &str)]) -> (i32, String, String) {
     let out = Command::new(env!("CARGO_BIN_EXE_skewbook"))
         .args(args)
+        .envs(vars.iter().copied())
         .current_dir(env!("CARGO_MANIFEST_DIR"))
         .output()
         .expect("run skewbook");

@@ -9,7 +9,7 @@
 //! file's name written `-`. In process, the library's two paths run on the
 //! same file name.
 
-use crate::common::write_temp;
+use crate::common::{skewbook_with_env, write_temp};
 use chrono::{Days, NaiveDate};
 use rand::{Rng, SeedableRng};
 use rand_chacha::ChaCha8Rng;
@@ -34,17 +34,7 @@ fn history_text() -> String {
 /// `skewbook ARGS` with every history file read in two passes, however
 /// small (`SKEWBOOK_STREAM_FROM_BYTES=0`): (exit code, stdout, stderr).
 fn skewbook(args: &[&str]) -> (i32, String, String) {
-    let out = Command::new(env!("CARGO_BIN_EXE_skewbook"))
-        .args(args)
-        .env("SKEWBOOK_STREAM_FROM_BYTES", "0")
-        .current_dir(env!("CARGO_MANIFEST_DIR"))
-        .output()
-        .expect("run skewbook");
-    (
-        out.status.code().unwrap_or(-1),
-        String::from_utf8_lossy(&out.stdout).into_owned(),
-        String::from_utf8_lossy(&out.stderr).into_owned(),
-    )
+    skewbook_with_env(args, &[("SKEWBOOK_STREAM_FROM_BYTES", "0")])
 }
 
 /// `skewbook ARGS` with `input` on standard input: (exit code, stdout, stderr).
