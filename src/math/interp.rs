@@ -214,6 +214,36 @@ pub(crate) fn interval(x: &[f64], t: f64) -> usize {
     x.partition_point(|&xi| xi <= t) - 1
 }
 
+/// For a curve through knots (x, y) held flat outside them: `Err` with
+/// its value where no interval is needed (NaN for NaN, the first y at or
+/// below the first knot, the last y at or above the last), else `Ok` with
+/// the interval of t (see [`interval`]).
+pub(crate) fn value_interval(x: &[f64], y: &[f64], t: f64) -> Result<usize, f64> {
+    let n = x.len() - 1;
+    if t.is_nan() {
+        Err(f64::NAN)
+    } else if t <= x[0] {
+        Err(y[0])
+    } else if t >= x[n] {
+        Err(y[n])
+    } else {
+        Ok(interval(x, t))
+    }
+}
+
+/// The same for the right-hand slope of such a curve: NaN for NaN, 0
+/// below the first knot and from the last knot on.
+pub(crate) fn slope_interval(x: &[f64], t: f64) -> Result<usize, f64> {
+    let n = x.len() - 1;
+    if t.is_nan() {
+        Err(f64::NAN)
+    } else if t < x[0] || t >= x[n] {
+        Err(0.0)
+    } else {
+        Ok(interval(x, t))
+    }
+}
+
 /// Sign as -1, 0 or 1 (0 for zero, unlike `f64::signum`), as numpy's `sign`.
 fn sign(v: f64) -> i8 {
     if v > 0.0 {
@@ -340,17 +370,10 @@ impl Curve1d {
     /// knot's value at or below the first knot, the last knot's at or above
     /// the last. NaN in, NaN out.
     pub fn eval(&self, x: f64) -> f64 {
-        let n = self.x.len();
-        if x.is_nan() {
-            return f64::NAN;
-        }
-        if x <= self.x[0] {
-            return self.y[0];
-        }
-        if x >= self.x[n - 1] {
-            return self.y[n - 1];
-        }
-        let k = interval(&self.x, x);
+        let k = match value_interval(&self.x, &self.y, x) {
+            Ok(k) => k,
+            Err(v) => return v,
+        };
         let [c0, c1, c2, c3] = self.cubics[k];
         let t = x - self.x[k];
         ((c0 * t + c1) * t + c2) * t + c3
@@ -686,17 +709,10 @@ impl ConcaveSpline {
     /// (no slope is continued: the caller adds the flat top knot). NaN in,
     /// NaN out.
     pub fn eval(&self, x: f64) -> f64 {
-        let n = self.x.len() - 1;
-        if x.is_nan() {
-            return f64::NAN;
-        }
-        if x <= self.x[0] {
-            return self.y[0];
-        }
-        if x >= self.x[n] {
-            return self.y[n];
-        }
-        let i = interval(&self.x, x);
+        let i = match value_interval(&self.x, &self.y, x) {
+            Ok(i) => i,
+            Err(v) => return v,
+        };
         let p = &self.pieces[i];
         let d = x - self.x[i];
         if d <= p.alpha {
@@ -713,14 +729,10 @@ impl ConcaveSpline {
     /// knot and from the last knot on, where [`ConcaveSpline::eval`] is
     /// flat. NaN in, NaN out.
     pub fn slope(&self, x: f64) -> f64 {
-        let n = self.x.len() - 1;
-        if x.is_nan() {
-            return f64::NAN;
-        }
-        if x < self.x[0] || x >= self.x[n] {
-            return 0.0;
-        }
-        let i = interval(&self.x, x);
+        let i = match slope_interval(&self.x, x) {
+            Ok(i) => i,
+            Err(s) => return s,
+        };
         let p = &self.pieces[i];
         let d = x - self.x[i];
         if d <= p.alpha {

@@ -9,7 +9,7 @@
 //! down, and is C1 (the implied loss density -g'' is piecewise linear and
 //! never negative).
 
-use super::interp::{concave_shape, interval, SLOPE_TOLERANCE};
+use super::interp::{concave_shape, slope_interval, value_interval, SLOPE_TOLERANCE};
 
 /// One interval's slope: the secant δ plus a deviation d(x), x in [0, 1]
 /// across the interval, with d(0) = g0, d(1) = g1 and ∫₀¹ d = 0.
@@ -395,17 +395,10 @@ impl MonotoneConvex {
     /// at the knot), y_first below the first knot, y_last from the last
     /// knot on. NaN in, NaN out.
     pub fn eval(&self, x: f64) -> f64 {
-        let n = self.x.len() - 1;
-        if x.is_nan() {
-            return f64::NAN;
-        }
-        if x <= self.x[0] {
-            return self.y[0];
-        }
-        if x >= self.x[n] {
-            return self.y[n];
-        }
-        let i = interval(&self.x, x);
+        let i = match value_interval(&self.x, &self.y, x) {
+            Ok(i) => i,
+            Err(v) => return v,
+        };
         let h = self.x[i + 1] - self.x[i];
         let u = (x - self.x[i]) / h;
         self.y[i] + h * (self.delta[i] * u + self.dev[i].integral(u))
@@ -416,14 +409,10 @@ impl MonotoneConvex {
     /// the last knot on, where [`MonotoneConvex::eval`] is flat. NaN in,
     /// NaN out.
     pub fn slope(&self, x: f64) -> f64 {
-        let n = self.x.len() - 1;
-        if x.is_nan() {
-            return f64::NAN;
-        }
-        if x < self.x[0] || x >= self.x[n] {
-            return 0.0;
-        }
-        let i = interval(&self.x, x);
+        let i = match slope_interval(&self.x, x) {
+            Ok(i) => i,
+            Err(s) => return s,
+        };
         let h = self.x[i + 1] - self.x[i];
         self.delta[i] + self.dev[i].value((x - self.x[i]) / h).0
     }
