@@ -39,6 +39,31 @@ fn inputs<'a>(
 /// Six dates of the history drawn with a fixed seed; on each, every chart's
 /// data equals what `implied` and `surface` print (JSON numbers round-trip
 /// exactly, so the tolerances are for rounding only).
+
+/// A skew chart's knots are the base correlations `implied` printed for
+/// its maturity (`tranches`: the JSON tranches of date `ds`), in order.
+pub(crate) fn knots_are_the_base_correlations(
+    c: &skewbook::chart::skew::SkewChart,
+    tranches: &[Value],
+    ds: &str,
+) {
+    let m = c.maturity.to_string();
+    let want: Vec<(f64, f64)> = tranches
+        .iter()
+        .filter(|t| t["maturity"] == m.as_str() && !t["base_correlation"].is_null())
+        .map(|t| {
+            (
+                number(&t["detach_pct"]) / 100.0,
+                number(&t["base_correlation"]),
+            )
+        })
+        .collect();
+    assert_eq!(c.knots.len(), want.len(), "{ds} {m}");
+    for (k, (d, r)) in c.knots.iter().zip(&want) {
+        assert!((k.detach - d).abs() < 1e-12 && (k.rho - r).abs() < 1e-15);
+    }
+}
+
 #[test]
 fn chart_data_matches_implied_and_surface_on_random_dates() {
     let snapshot = read_snapshot(&repo(HISTORY)).expect("history");
@@ -72,20 +97,7 @@ fn chart_data_matches_implied_and_surface_on_random_dates() {
         assert!(!charts.skews.is_empty());
         for c in &charts.skews {
             let m = c.maturity.to_string();
-            let want: Vec<(f64, f64)> = tranches
-                .iter()
-                .filter(|t| t["maturity"] == m.as_str() && !t["base_correlation"].is_null())
-                .map(|t| {
-                    (
-                        number(&t["detach_pct"]) / 100.0,
-                        number(&t["base_correlation"]),
-                    )
-                })
-                .collect();
-            assert_eq!(c.knots.len(), want.len(), "{ds} {m}");
-            for (k, (d, r)) in c.knots.iter().zip(&want) {
-                assert!((k.detach - d).abs() < 1e-12 && (k.rho - r).abs() < 1e-15);
-            }
+            knots_are_the_base_correlations(c, tranches, &ds);
             for (curve, (interp, surface)) in c.curves.iter().zip(&surfaces) {
                 assert_eq!(curve.interp, *interp);
                 let sm = of_date(surface, &ds)["maturities"]

@@ -4,6 +4,7 @@
 //! library pricing the quotes back in a pool of 125 names), the large
 //! pool's numbers are not, and every output names the pool.
 
+use crate::charts::knots_are_the_base_correlations;
 use crate::common::{json_of, number, of_date, repo, skewbook};
 use rand::{Rng, SeedableRng};
 use rand_chacha::ChaCha8Rng;
@@ -251,20 +252,7 @@ fn charts_in_125_names_draw_the_finite_pool() {
 
         for c in &charts.skews {
             let m = c.maturity.to_string();
-            let want: Vec<(f64, f64)> = tranches
-                .iter()
-                .filter(|t| t["maturity"] == m.as_str() && !t["base_correlation"].is_null())
-                .map(|t| {
-                    (
-                        number(&t["detach_pct"]) / 100.0,
-                        number(&t["base_correlation"]),
-                    )
-                })
-                .collect();
-            assert_eq!(c.knots.len(), want.len(), "{ds} {m}");
-            for (k, (d, r)) in c.knots.iter().zip(&want) {
-                assert!((k.detach - d).abs() < 1e-12 && (k.rho - r).abs() < 1e-15);
-            }
+            knots_are_the_base_correlations(c, tranches, &ds);
             let interps: Vec<Interp> = c.curves.iter().map(|c| c.interp).collect();
             assert_eq!(interps, [Interp::Linear, Interp::Pchip]);
             for (curve, (_, surface)) in c.curves.iter().zip(&surfaces) {
