@@ -36,10 +36,6 @@ fn inputs<'a>(
     }
 }
 
-/// Six dates of the history drawn with a fixed seed; on each, every chart's
-/// data equals what `implied` and `surface` print (JSON numbers round-trip
-/// exactly, so the tolerances are for rounding only).
-
 /// A skew chart's knots are the base correlations `implied` printed for
 /// its maturity (`tranches`: the JSON tranches of date `ds`), in order.
 pub(crate) fn knots_are_the_base_correlations(
@@ -64,6 +60,9 @@ pub(crate) fn knots_are_the_base_correlations(
     }
 }
 
+/// Six dates of the history drawn with a fixed seed; on each, every chart's
+/// data equals what `implied` and `surface` print (JSON numbers round-trip
+/// exactly, so the tolerances are for rounding only).
 #[test]
 fn chart_data_matches_implied_and_surface_on_random_dates() {
     let snapshot = read_snapshot(&repo(HISTORY)).expect("history");
